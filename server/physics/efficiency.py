@@ -1,0 +1,162 @@
+"""Efficiency at the operating point, with its band, from a loss model.
+
+Losses are split at the rated point into fixed losses (core, friction and
+windage: an uncertain share of the rated losses) and load losses. At the
+operating point
+
+* core loss scales with flux squared times frequency,
+* friction and windage with speed squared,
+* stator copper plus stray load loss with the square of the *measured*
+  current (the magnetising current keeps it up at light load), not with the
+  square of the load,
+* rotor copper loss is ``s / (1 - s)`` times the mechanical power.
+
+References
+----------
+.. [1] US DOE, "Determining Electric Motor Load and Efficiency",
+   DOE/GO-10097-517 (loss categories and their behaviour with load).
+.. [2] IEC 60034-1, tolerance on efficiency: -15 % of (1 - eta) for
+   motors up to 150 kW, -10 % above (as commonly quoted).
+"""
+
+from __future__ import annotations
+
+from typing import NamedTuple
+
+import numpy as np
+
+
+class LossBudget(NamedTuple):
+    """Rated-point losses [W] of one nameplate each (arrays)."""
+
+    core_w: np.ndarray
+    friction_windage_w: np.ndarray
+    stator_w: np.ndarray       # stator copper plus stray load
+    rotor_w: np.ndarray        # rotor copper
+
+
+def rated_loss_budget(rated_output_w, rated_efficiency, rated_slip, fixed_share, friction_windage_share):
+    """Split the rated-point losses into their parts.
+
+    Parameters
+    ----------
+    rated_output_w : numeric
+        Rated output [W].
+    rated_efficiency : numeric
+        Rated efficiency [pu].
+    rated_slip : numeric
+        Rated slip [pu].
+    fixed_share : numeric
+        Core plus friction and windage as a share of total losses [-].
+    friction_windage_share : numeric
+        Friction and windage as a share of the fixed losses [-].
+
+    Returns
+    -------
+    LossBudget
+        The stator loss is the remainder, kept at no less than 10 % of the
+        losses by shrinking the core loss (as :func:`circuit.fit_circuit`).
+    """
+    p_out = np.asarray(rated_output_w, dtype=float)
+    eta = np.asarray(rated_efficiency, dtype=float)
+    s = np.asarray(rated_slip, dtype=float)
+    losses = p_out / eta - p_out
+    fixed = np.asarray(fixed_share, dtype=float) * losses
+    fw = np.asarray(friction_windage_share, dtype=float) * fixed
+    rotor = s / (1.0 - s) * (p_out + fw)
+    stator = losses - fixed - rotor
+    shortfall = np.maximum(0.10 * losses - stator, 0.0)
+    core = np.maximum(fixed - fw - shortfall, 0.0)
+    stator = losses - core - fw - rotor
+    return LossBudget(core, fw, stator, rotor)
+
+
+def operating_losses_w(budget: LossBudget, flux_ratio, frequency_ratio, speed_ratio, current_ratio,
+                       slip, output_w):
+    """Losses at the operating point [W].
+
+    Parameters
+    ----------
+    budget : LossBudget
+        Rated-point losses.
+    flux_ratio : numeric
+        ``(V/f) / (V_r/f_r)`` [-].
+    frequency_ratio : numeric
+        ``f / f_r`` [-].
+    speed_ratio : numeric
+        ``n / n_r`` [-].
+    current_ratio : numeric
+        Measured over rated current [-].
+    slip : numeric
+        Slip [pu].
+    output_w : numeric
+        Shaft output [W].
+
+    Returns
+    -------
+    numeric
+        Total losses [W].
+    """
+    s = np.clip(np.asarray(slip, dtype=float), 0.0, 0.999)
+    fw = budget.friction_windage_w * np.asarray(speed_ratio, dtype=float) ** 2
+    core = budget.core_w * np.asarray(flux_ratio, dtype=float) ** 2 * np.asarray(frequency_ratio, dtype=float)
+    stator = budget.stator_w * np.asarray(current_ratio, dtype=float) ** 2
+    rotor = s / (1.0 - s) * (np.asarray(output_w, dtype=float) + fw)
+    return core + fw + stator + rotor
+
+
+def efficiency_pu(output_w, losses_w):
+    """``P_out / (P_out + losses)`` [pu]; NaN where the sum is not positive."""
+    out = np.asarray(output_w, dtype=float)
+    tot = out + np.asarray(losses_w, dtype=float)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(tot > 0, out / tot, np.nan)
+
+
+#: Multipliers bounding the actual rated losses against the nameplate's:
+#: IEC 60034-1 allows the efficiency to fall short by 15 % of (1 - eta) (up
+#: to 150 kW); the lower side is a common spread of measured motors.
+LOSS_TOLERANCE = (0.90, 1.15)
+
+
+def efficiency_band(budgets, output_w, output_low_w, output_high_w, flux_ratio, frequency_ratio,
+                    speed_ratio, current_ratio, current_accuracy_pct, slip):
+    """Efficiency at the operating point and its band.
+
+    Parameters
+    ----------
+    budgets : tuple of LossBudget
+        ``(central, low_fixed, high_fixed)``: the budgets built with the
+        central, lowest and highest fixed-loss share.
+    output_w, output_low_w, output_high_w : numeric
+        Shaft output estimate and its band [W].
+    flux_ratio, frequency_ratio, speed_ratio, current_ratio, slip : numeric
+        Operating conditions (see :func:`operating_losses_w`).
+    current_accuracy_pct : numeric
+        Clamp meter accuracy [% of reading].
+
+    Returns
+    -------
+    tuple of numeric
+        ``(efficiency, low, high)`` [pu]: the band is the extreme of every
+        corner of output band x fixed share x loss tolerance x meter accuracy.
+    """
+    central, *others = budgets
+    acc = np.asarray(current_accuracy_pct, dtype=float) / 100.0
+    ir = np.asarray(current_ratio, dtype=float)
+    eta = efficiency_pu(output_w, operating_losses_w(central, flux_ratio, frequency_ratio, speed_ratio, ir,
+                                                     slip, output_w))
+    low = np.full_like(eta, np.inf)
+    high = np.full_like(eta, -np.inf)
+    for budget in (central, *others):
+        for k in LOSS_TOLERANCE:
+            scaled = LossBudget(*(part * k for part in budget))
+            for p in (output_low_w, output_high_w):
+                for ic in (ir * (1 - acc), ir * (1 + acc)):
+                    e = efficiency_pu(p, operating_losses_w(scaled, flux_ratio, frequency_ratio, speed_ratio,
+                                                            ic, slip, p))
+                    low = np.fmin(low, e)
+                    high = np.fmax(high, e)
+    low = np.where(np.isfinite(low), np.fmin(low, eta), np.nan)
+    high = np.where(np.isfinite(high), np.fmax(high, eta), np.nan)
+    return eta, low, high

@@ -1,0 +1,322 @@
+"""Shaft load from field readings: slip, current and input-power methods, fused.
+
+Every method returns an :class:`Estimate`: the central value and a band
+``[low, high]`` meant as roughly 95 % limits, all as a fraction of rated
+shaft *output* [pu]. No method reports a negative load: estimates are
+clipped at zero.
+
+References
+----------
+.. [1] US DOE, "Determining Electric Motor Load and Efficiency", Motor
+   Challenge fact sheet DOE/GO-10097-517 (slip, current and input-power
+   methods and their worked examples).
+.. [2] IEC 60034-1 / NEMA MG 1: full-load slip tolerance +-20 % of rated
+   slip (+-30 % for motors under 1 kW).
+.. [3] IEC 60034-2-1: temperature correction of winding resistance,
+   ``R2/R1 = (k + T2) / (k + T1)`` with k = 225 for aluminium.
+"""
+
+from __future__ import annotations
+
+from typing import NamedTuple
+
+import numpy as np
+
+#: IEC 60034-2-1 temperature constant for aluminium rotor cages [degC].
+ALUMINIUM_K_DEGC = 225.0
+#: Ambient temperature assumed for a cold rotor [degC] (IEC 60034-1 reference ambient 20-40).
+AMBIENT_DEGC = 25.0
+#: Rotor temperature rise at rated load [K] (common practice for class B rise, class F insulation).
+ROTOR_RISE_RATED_K = 75.0
+#: Thermal time constant used to judge how warm the rotor is [min] (common practice, small/medium motors).
+ROTOR_THERMAL_TIME_MIN = 30.0
+#: Nameplate slip tolerance, fraction of rated slip (IEC 60034-1 Table 21 / NEMA MG 1 12.46).
+SLIP_TOLERANCE = 0.20
+SLIP_TOLERANCE_BELOW_1KW = 0.30
+#: Model error of the current method beyond meter and no-load current uncertainty [pu of rated].
+CURRENT_MODEL_ERROR_PU = 0.05
+#: Uncertainty of the circuit's no-load current [fraction].
+NO_LOAD_CURRENT_TOLERANCE = 0.20
+#: Absolute accuracy of a power-factor reading [-] (common practice for clamp power meters).
+POWER_FACTOR_ACCURACY = 0.02
+
+
+class Estimate(NamedTuple):
+    """A load estimate [pu of rated output] with its band."""
+
+    value: np.ndarray
+    low: np.ndarray
+    high: np.ndarray
+
+
+def _combine_rel(*rel):
+    """Quadrature sum of relative half-widths, in log space."""
+    return np.sqrt(sum(np.log1p(np.asarray(r, dtype=float)) ** 2 for r in rel))
+
+
+def rotor_resistance_ratio(load_pu, minutes_running):
+    """Rotor resistance relative to its value at rated load and temperature [-].
+
+    The rotor is taken to settle at ``ambient + rise * load^2`` and to approach
+    it with a first-order thermal time constant from ambient. Unknown running
+    time (NaN) is taken as a fully warm rotor here; the cold case belongs in
+    the band (see :func:`slip_method`).
+    """
+    load_pu = np.clip(np.asarray(load_pu, dtype=float), 0.0, 2.0)
+    t = np.asarray(minutes_running, dtype=float)
+    warm_fraction = np.where(np.isnan(t), 1.0, 1.0 - np.exp(-t / ROTOR_THERMAL_TIME_MIN))
+    temp = AMBIENT_DEGC + ROTOR_RISE_RATED_K * load_pu ** 2 * warm_fraction
+    return (ALUMINIUM_K_DEGC + temp) / (ALUMINIUM_K_DEGC + AMBIENT_DEGC + ROTOR_RISE_RATED_K)
+
+
+def slip_method(slip_rpm, rated_slip_rpm, flux_ratio, speed_ratio, rated_power_kw,
+                tachometer_resolution_rpm, voltage_accuracy_pct, minutes_running, on_drive):
+    """Load by the slip method with flux (voltage) compensation.
+
+    Parameters
+    ----------
+    slip_rpm : numeric
+        Measured slip speed, synchronous minus shaft speed [rpm].
+    rated_slip_rpm : numeric
+        Nameplate slip speed at rated frequency [rpm].
+    flux_ratio : numeric
+        Air-gap flux relative to rated, ``(V/f) / (V_r/f_r)`` [-]; on mains
+        at rated frequency this is ``V / V_r``.
+    speed_ratio : numeric
+        Shaft speed over rated speed [-].
+    rated_power_kw : numeric
+        Rated output [kW] (chooses the nameplate slip tolerance).
+    tachometer_resolution_rpm : numeric
+        Resolution plus accuracy of the speed reading [rpm].
+    voltage_accuracy_pct : numeric
+        Voltmeter accuracy [% of reading].
+    minutes_running : numeric
+        Time run before the reading [min]; NaN when unknown.
+    on_drive : numeric of bool
+        Supply by a variable-frequency drive.
+
+    Returns
+    -------
+    torque : Estimate
+        Shaft torque over rated torque [pu].
+    output : Estimate
+        Shaft output over rated output [pu] (torque times speed ratio).
+
+    Notes
+    -----
+    In the linear part of the torque-speed curve torque is proportional to
+    rotor frequency times flux squared, so the rated slip seen at the
+    present flux is ``s_r (V_r / V)^2`` on mains [1]_ and, on a drive, the rated
+    slip speed scaled by ``((V_r/f_r) / (V/f))^2``. Load torque is then
+    ``s / s_r'``, the published method unchanged.
+
+    The band combines in quadrature (log space) the nameplate slip tolerance
+    [2]_, the tachometer resolution and the voltmeter accuracy (doubled: flux
+    enters squared); a rotor that may be cold (unknown or short running
+    time) widens only the high side, up to the rated-to-ambient resistance
+    ratio [3]_; a warm rotor at part load is cooler than at rated load too, by
+    ``(k + T_amb + rise L^2) / (k + T_amb + rise)``, which also widens the high
+    side.
+    """
+    slip_rpm = np.asarray(slip_rpm, dtype=float)
+    rated_slip_rpm = np.asarray(rated_slip_rpm, dtype=float)
+    flux2 = np.asarray(flux_ratio, dtype=float) ** 2
+    with np.errstate(divide="ignore", invalid="ignore"):
+        torque = slip_rpm / rated_slip_rpm * flux2
+        tol = np.where(np.asarray(rated_power_kw, dtype=float) < 1.0, SLIP_TOLERANCE_BELOW_1KW, SLIP_TOLERANCE)
+        tach = np.asarray(tachometer_resolution_rpm, dtype=float) / np.maximum(np.abs(slip_rpm), 1e-9)
+        volt = 2.0 * np.asarray(voltage_accuracy_pct, dtype=float) / 100.0
+        volt = np.where(np.asarray(on_drive, dtype=bool), 2.0 * volt, volt)  # PWM voltage read by meter
+        # nameplate slip tolerance: true rated slip in [1 - tol, 1 + tol] times nameplate
+        half_low = _combine_rel(tol, tach, volt)
+        half_high = _combine_rel(tol / (1.0 - tol), tach, volt)
+        # a rotor cooler than at rated load slips less for the same torque: at part
+        # load when warm, and anything down to ambient when the running time is unknown
+        t = np.asarray(minutes_running, dtype=float)
+        thermal = np.where(np.isnan(t), 1.0 / rotor_resistance_ratio(0.0, 0.0),
+                           1.0 / rotor_resistance_ratio(torque, t))
+        t_low = torque * np.exp(-half_low)
+        t_high = torque * np.exp(half_high) * np.maximum(thermal, 1.0)
+    speed_ratio = np.asarray(speed_ratio, dtype=float)
+    torque_est = Estimate(*(np.clip(a, 0.0, None) for a in (torque, t_low, t_high)))
+    output_est = Estimate(*(a * speed_ratio for a in torque_est))
+    return torque_est, output_est
+
+
+def current_method(current_a, rated_current_a, no_load_current_a, rated_no_load_current_a,
+                   flux_ratio, speed_ratio, current_accuracy_pct):
+    """Load by the current method, with the magnetising current removed.
+
+    Parameters
+    ----------
+    current_a : numeric
+        Measured line current, mean of the phases read [A].
+    rated_current_a : numeric
+        Nameplate current [A].
+    no_load_current_a : numeric
+        No-load current at the present voltage and frequency [A] (from the
+        fitted circuit).
+    rated_no_load_current_a : numeric
+        No-load current at rated voltage and frequency [A].
+    flux_ratio : numeric
+        Flux relative to rated [-] (see :func:`slip_method`).
+    speed_ratio : numeric
+        Shaft speed over rated speed [-].
+    current_accuracy_pct : numeric
+        Clamp meter accuracy [% of reading].
+
+    Returns
+    -------
+    Estimate
+        Shaft output over rated output [pu].
+
+    Notes
+    -----
+    The DOE fact sheet's current method takes load as ``I/I_r`` scaled by
+    ``V/V_r`` [1]_, which reads 30-60 % for an idling motor. Here the
+    no-load (mostly magnetising) current is taken out in quadrature:
+    torque ``~ flux * sqrt(I^2 - I_0^2) / sqrt(I_r^2 - I_0r^2)``, output =
+    torque times speed ratio. The band adds the meter accuracy, a 20 %
+    uncertainty of the circuit's no-load current and a 5 % model error.
+    """
+    i = np.asarray(current_a, dtype=float)
+    i_r = np.asarray(rated_current_a, dtype=float)
+    i0 = np.asarray(no_load_current_a, dtype=float)
+    i0r = np.asarray(rated_no_load_current_a, dtype=float)
+    factor = np.asarray(flux_ratio, dtype=float) * np.asarray(speed_ratio, dtype=float)
+    acc = np.asarray(current_accuracy_pct, dtype=float) / 100.0
+
+    def load(i_meas, i0_scale):
+        with np.errstate(invalid="ignore", divide="ignore"):
+            num = np.sqrt(np.maximum(i_meas ** 2 - (i0 * i0_scale) ** 2, 0.0))
+            den = np.sqrt(np.maximum(i_r ** 2 - (i0r * i0_scale) ** 2, 1e-12))
+            return num / den * factor
+
+    value = load(i, 1.0)
+    # low: meter reads high and the magnetising current is larger than modelled
+    low = np.minimum(load(i * (1 - acc), 1 + NO_LOAD_CURRENT_TOLERANCE), load(i * (1 - acc), 1.0))
+    high = np.maximum(load(i * (1 + acc), 1 - NO_LOAD_CURRENT_TOLERANCE), load(i * (1 + acc), 1.0))
+    # model error in quadrature with the half-widths above
+    low = value - np.sqrt((value - low) ** 2 + CURRENT_MODEL_ERROR_PU ** 2)
+    high = value + np.sqrt((high - value) ** 2 + CURRENT_MODEL_ERROR_PU ** 2)
+    return Estimate(np.clip(value, 0, None), np.clip(low, 0, None), np.clip(high, 0, None))
+
+
+def input_power_w(voltage_v, current_a, power_factor):
+    """Three-phase input power from line voltage, line current and PF [W].
+
+    ``P = sqrt(3) V I pf`` (DOE fact sheet [1]_, Equation 1 without the /1000).
+    """
+    return np.sqrt(3.0) * np.asarray(voltage_v, dtype=float) * np.asarray(current_a, dtype=float) * \
+        np.asarray(power_factor, dtype=float)
+
+
+def input_power_method(input_w, input_accuracy_pct, core_loss_w, friction_windage_w, stator_loss_w,
+                       slip, rated_output_w, fixed_loss_band=(0.67, 1.5), stator_loss_band=(0.8, 1.2)):
+    """Load by the input-power method with losses at the operating point.
+
+    Parameters
+    ----------
+    input_w : numeric
+        Measured (or V, I, PF derived) input power [W].
+    input_accuracy_pct : numeric
+        Accuracy of that input power [% of reading].
+    core_loss_w : numeric
+        Core loss at the present voltage and frequency [W].
+    friction_windage_w : numeric
+        Friction and windage at the present speed [W].
+    stator_loss_w : numeric
+        Stator copper plus stray load loss at the *measured* current [W].
+    slip : numeric
+        Measured slip [pu]: rotor copper loss is ``s`` times air-gap power.
+    rated_output_w : numeric
+        Rated output [W].
+    fixed_loss_band, stator_loss_band : tuple of float
+        Multipliers bounding the fixed and the stator losses (typical loss
+        split uncertainty).
+
+    Returns
+    -------
+    Estimate
+        Shaft output over rated output [pu].
+
+    Notes
+    -----
+    ``P_ag = P_in - P_core - P_cu1``, ``P_out = (1 - s) P_ag - P_fw``. This
+    takes the efficiency at the estimated load, not at full load as the DOE
+    sheet's ``P_in / P_ir`` ratio does [1]_.
+    """
+    p_in = np.asarray(input_w, dtype=float)
+    acc = np.asarray(input_accuracy_pct, dtype=float) / 100.0
+    core = np.asarray(core_loss_w, dtype=float)
+    fw = np.asarray(friction_windage_w, dtype=float)
+    cu1 = np.asarray(stator_loss_w, dtype=float)
+    s = np.clip(np.asarray(slip, dtype=float), 0.0, 1.0)
+    p_rated = np.asarray(rated_output_w, dtype=float)
+
+    def out(pin, kfix, kcu):
+        return ((1.0 - s) * (pin - kfix * core - kcu * cu1) - kfix * fw) / p_rated
+
+    value = out(p_in, 1.0, 1.0)
+    low = out(p_in * (1 - acc), fixed_loss_band[1], stator_loss_band[1])
+    high = out(p_in * (1 + acc), fixed_loss_band[0], stator_loss_band[0])
+    return Estimate(*(np.clip(a, 0.0, None) for a in (value, low, high)))
+
+
+def fuse(estimates):
+    """Fuse independent estimates, weighting each by its uncertainty.
+
+    Parameters
+    ----------
+    estimates : sequence of Estimate
+        NaN marks a method that is not available for a row.
+
+    Returns
+    -------
+    fused : Estimate
+        Inverse-variance weighted value; each side's half-width is the
+        quadrature combination of the methods' half-widths on that side
+        (taken as 2-sigma limits). With one method it is that method.
+    consistent : numpy.ndarray of bool
+        False where two methods disagree by more than their bands allow.
+    outlier : numpy.ndarray of int
+        Index of the method that disagrees with the others (-1: none, or
+        only two methods so the culprit is ambiguous; -2 ambiguous).
+    """
+    v = np.stack([np.asarray(e.value, dtype=float) for e in estimates])
+    lo = np.stack([np.asarray(e.low, dtype=float) for e in estimates])
+    hi = np.stack([np.asarray(e.high, dtype=float) for e in estimates])
+    floor = 1e-3  # 0.1 % of rated: keeps a method with a zero-width band from owning the fusion
+    s_lo = np.maximum((v - lo) / 2.0, floor)
+    s_hi = np.maximum((hi - v) / 2.0, floor)
+    sigma = 0.5 * (s_lo + s_hi)
+    ok = np.isfinite(v) & np.isfinite(sigma)
+    w = np.where(ok, 1.0 / sigma ** 2, 0.0)
+    wsum = w.sum(axis=0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        value = np.where(ok, w * np.where(ok, v, 0.0), 0.0).sum(axis=0) / wsum
+        half_lo = 2.0 * np.sqrt(1.0 / np.where(ok, 1.0 / s_lo ** 2, 0.0).sum(axis=0))
+        half_hi = 2.0 * np.sqrt(1.0 / np.where(ok, 1.0 / s_hi ** 2, 0.0).sum(axis=0))
+    value = np.where(wsum > 0, value, np.nan)
+    fused = Estimate(np.clip(value, 0, None), np.clip(value - half_lo, 0, None), value + half_hi)
+
+    m = v.shape[0]
+    disagree = np.zeros((m, m) + v.shape[1:], dtype=bool)
+    for a in range(m):
+        for b in range(m):
+            if a == b:
+                continue
+            # a above b: a's low side against b's high side
+            gap = v[a] - v[b]
+            allowed = np.sqrt((v[a] - lo[a]) ** 2 + (hi[b] - v[b]) ** 2)
+            with np.errstate(invalid="ignore"):
+                disagree[a, b] = ok[a] & ok[b] & (gap > allowed)
+    pair = disagree | np.swapaxes(disagree, 0, 1)
+    consistent = ~pair.any(axis=(0, 1))
+    n_ok = ok.sum(axis=0)
+    votes = pair.sum(axis=1)                 # how many methods each one disagrees with
+    outlier = np.argmax(votes, axis=0)
+    top = votes.max(axis=0)
+    unique_top = (votes == top).sum(axis=0) == 1
+    outlier = np.where(consistent, -1, np.where((n_ok >= 3) & unique_top, outlier, -2))
+    return fused, consistent, outlier

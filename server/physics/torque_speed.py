@@ -1,0 +1,137 @@
+"""Torque-speed: driven-load torque laws, breakdown margin, stability, starting.
+
+The motor's own curve comes from the fitted circuit (:mod:`.circuit`); the
+Kloss formula here is the documented simplification used where only the
+breakdown point is known.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+#: Driven-load torque laws and how load torque varies with speed ``n``:
+#: ``variable_torque`` T ~ n^2 (fans, centrifugal pumps); ``constant_torque``
+#: (conveyors, positive-displacement pumps, compressors); ``constant_power``
+#: T ~ 1/n (winders, some machine tools); ``high_breakaway`` constant torque
+#: with a breakaway peak near standstill (loaded conveyors, crushers, mixers).
+LOAD_LAWS = ("variable_torque", "constant_torque", "constant_power", "high_breakaway")
+
+#: Speed below which a high-breakaway load needs its breakaway torque [pu of synchronous].
+BREAKAWAY_SPEED_PU = 0.1
+
+
+def kloss_torque(slip, breakdown_slip, breakdown_torque):
+    """Motor torque by the Kloss formula.
+
+    Parameters
+    ----------
+    slip : numeric
+        Slip [pu].
+    breakdown_slip : numeric
+        Slip at breakdown torque [pu].
+    breakdown_torque : numeric
+        Breakdown torque (any unit; the result has the same unit).
+
+    Returns
+    -------
+    numeric
+        ``T = 2 T_k / (s / s_k + s_k / s)``.
+
+    Notes
+    -----
+    Neglects stator resistance; exact for the circuit with ``R1 = 0``. It is a
+    simplification: the fitted circuit is used for the reported figures.
+
+    References
+    ----------
+    .. [1] M. Kloss, the classical two-parameter torque-slip formula, as given
+       in standard electric-machinery texts.
+
+    Examples
+    --------
+    >>> float(kloss_torque(0.2, 0.2, 250.0))
+    250.0
+    """
+    s = np.asarray(slip, dtype=float)
+    sk = np.asarray(breakdown_slip, dtype=float)
+    tk = np.asarray(breakdown_torque, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(s == 0, 0.0, 2.0 * tk / (s / sk + sk / s))
+
+
+def load_torque(speed_rpm, law, operating_speed_rpm, operating_torque, sync_speed_rpm,
+                breakaway_torque=np.nan):
+    """Torque the driven machine demands at a speed, through the operating point.
+
+    Parameters
+    ----------
+    speed_rpm : numeric
+        Speeds to evaluate [rpm].
+    law : str or array of str
+        One of :data:`LOAD_LAWS`.
+    operating_speed_rpm, operating_torque : numeric
+        The operating point the law passes through [rpm], [any torque unit].
+    sync_speed_rpm : numeric
+        Synchronous speed [rpm] (scales the breakaway region).
+    breakaway_torque : numeric
+        Torque needed at standstill by ``high_breakaway`` loads (same unit).
+
+    Returns
+    -------
+    numeric
+        Load torque; for ``constant_power`` capped at 3x the operating torque
+        near standstill (a real machine's limit).
+    """
+    n = np.asarray(speed_rpm, dtype=float)
+    law = np.asarray(law)
+    n0 = np.asarray(operating_speed_rpm, dtype=float)
+    t0 = np.asarray(operating_torque, dtype=float)
+    ns = np.asarray(sync_speed_rpm, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        variable = t0 * (n / n0) ** 2
+        constant = t0 * np.ones_like(n)
+        power = np.minimum(t0 * n0 / np.maximum(n, 1e-9), 3.0 * t0)
+        ramp = np.clip(1.0 - n / (BREAKAWAY_SPEED_PU * ns), 0.0, 1.0)
+        breakaway = t0 + (np.fmax(np.asarray(breakaway_torque, dtype=float), t0) - t0) * ramp
+    return np.select([law == "variable_torque", law == "constant_torque", law == "constant_power",
+                      law == "high_breakaway"], [variable, constant, power, breakaway], np.nan)
+
+
+def load_torque_slope(law, operating_speed_rpm, operating_torque):
+    """d(load torque)/d(speed) at the operating point [torque unit per rpm]."""
+    law = np.asarray(law)
+    n0 = np.asarray(operating_speed_rpm, dtype=float)
+    t0 = np.asarray(operating_torque, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.select([law == "variable_torque", law == "constant_power"],
+                         [2.0 * t0 / n0, -t0 / n0], 0.0)
+
+
+def is_stable(motor_slope, load_slope):
+    """Whether an operating point is stable.
+
+    Parameters
+    ----------
+    motor_slope, load_slope : numeric
+        d(torque)/d(speed) of the motor and of the load at the point
+        [torque unit per rpm].
+
+    Returns
+    -------
+    numpy.ndarray of bool
+        True where a small speed rise makes the load torque exceed the motor
+        torque (``dT_motor/dn < dT_load/dn``), so the speed falls back.
+    """
+    return np.asarray(motor_slope, dtype=float) < np.asarray(load_slope, dtype=float)
+
+
+def breakdown_margin(breakdown_torque, operating_torque):
+    """Breakdown torque over operating torque [-].
+
+    The operating torque is floored at 1 % of the breakdown torque's unit
+    basis by the caller; here NaN where either is missing.
+    """
+    bt = np.asarray(breakdown_torque, dtype=float)
+    ot = np.asarray(operating_torque, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(ot > 0, bt / ot, np.nan)
