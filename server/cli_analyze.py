@@ -1,0 +1,153 @@
+"""``slipwise analyze``: interpret a readings file in batch.
+
+Exit status: 0 when every row was interpreted, 1 when some rows carry an
+``error``, 2 for a usage error (missing file, unknown column, bad option).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from . import contract as C
+from .engine import InputError, interpret_columns, thresholds_from_mapping
+
+#: Columns carried through from the input untouched (site records, notes).
+PASSTHROUGH_COLUMNS = ("site", "location", "description", "technician", "notes", "reading_ref")
+_TEXT_INPUTS = {"tag", "design", "supply", "driven_load", "taken_at"} | set(PASSTHROUGH_COLUMNS)
+
+
+class UsageError(Exception):
+    """Bad invocation or unusable file: exit status 2."""
+
+
+def add_analyze_parser(subparsers) -> argparse.ArgumentParser:
+    """Register ``analyze`` on an argparse subparsers object."""
+    parser = subparsers.add_parser(
+        "analyze", help="interpret a CSV of readings (nameplate columns in it or in --motors)",
+        description="Interpret every reading of a CSV file: synchronous speed and slip, load by three "
+                    "methods with a band, efficiency, supply quality, breakdown margin and flags.")
+    parser.add_argument("readings", help="CSV file of readings (contract column names)")
+    parser.add_argument("-o", "--output", help="file to write (default: standard output)")
+    parser.add_argument("--motors", help="CSV file of nameplates joined on the tag column")
+    parser.add_argument("--format", choices=("csv", "json"), default="csv",
+                        help="csv (default) or json (one JSON object per line)")
+    parser.add_argument("--threshold", action="append", default=[], metavar="NAME=VALUE",
+                        help="override a flag threshold, e.g. underloaded_pct=30 (repeatable)")
+    parser.set_defaults(func=run_analyze)
+    return parser
+
+
+def _read_csv(path: str, what: str) -> pd.DataFrame:
+    file = Path(path)
+    if not file.is_file():
+        raise UsageError(f"{what} file not found: {path}")
+    try:
+        frame = pd.read_csv(file, keep_default_na=False, na_values=[""],
+                            dtype={c: str for c in _TEXT_INPUTS}, encoding="utf-8-sig")
+    except (pd.errors.ParserError, pd.errors.EmptyDataError, UnicodeDecodeError) as exc:
+        raise UsageError(f"{what} file {path} is not a readable CSV: {exc}") from None
+    unknown = [c for c in frame.columns if c not in C.INPUT_FIELDS and c not in PASSTHROUGH_COLUMNS]
+    if unknown:
+        raise UsageError(f"unknown column(s) in {path}: {', '.join(map(str, unknown))}; allowed columns are "
+                         f"the contract's fields ({', '.join(C.INPUT_FIELDS)}) and {', '.join(PASSTHROUGH_COLUMNS)}")
+    if "tag" not in frame.columns:
+        raise UsageError(f"{path} has no tag column")
+    return frame
+
+
+def _join_motors(readings: pd.DataFrame, motors: pd.DataFrame) -> tuple[pd.DataFrame, np.ndarray]:
+    dup = motors["tag"][motors["tag"].duplicated()].unique()
+    if len(dup):
+        raise UsageError(f"motors file lists tag(s) more than once: {', '.join(map(str, dup[:5]))}")
+    nameplate_cols = [c for c in motors.columns if c != "tag"]
+    clash = [c for c in nameplate_cols if c in readings.columns and c in C.NAMEPLATE_FIELDS]
+    left = readings.drop(columns=clash)
+    merged = left.merge(motors, on="tag", how="left", indicator=True, validate="many_to_one")
+    missing = (merged.pop("_merge") == "left_only").to_numpy()
+    return merged, missing
+
+
+def _thresholds(pairs):
+    values = {}
+    for pair in pairs:
+        if "=" not in pair:
+            raise UsageError(f"--threshold takes NAME=VALUE, got {pair!r}")
+        name, value = pair.split("=", 1)
+        values[name.strip()] = value.strip()
+    try:
+        return thresholds_from_mapping(values)
+    except InputError as exc:
+        raise UsageError(f"--threshold {exc.field}: {exc.message}") from None
+
+
+def analyze_frame(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> pd.DataFrame:
+    """Input frame plus every result column, in contract order."""
+    cols = {c: frame[c].to_numpy() for c in frame.columns if c in C.INPUT_FIELDS}
+    out = interpret_columns(cols, thresholds)
+    result = pd.DataFrame({c: out[c] for c in C.RESULT_COLUMNS})
+    if missing_motor is not None and missing_motor.any():
+        idx = np.flatnonzero(missing_motor)
+        for c in C.RESULT_COLUMNS:
+            if c in C.TEXT_RESULT_COLUMNS:
+                result.loc[idx, c] = ""
+            else:
+                result.loc[idx, c] = np.nan
+        result.loc[idx, "error"] = [f"tag {frame['tag'].iloc[i]!r} is not in the motors file" for i in idx]
+        result.loc[idx, "error_field"] = "tag"
+        result.loc[idx, "engine_version"] = C.ENGINE_VERSION
+    result["poles"] = pd.array(np.where(np.isnan(result["poles"].to_numpy(dtype=float)), None,
+                                        result["poles"].to_numpy(dtype=float)), dtype="Int64")
+    keep = frame.drop(columns=[c for c in frame.columns if c in result.columns])
+    return pd.concat([keep.reset_index(drop=True), result], axis=1)
+
+
+def _write(frame: pd.DataFrame, output, fmt: str) -> None:
+    if fmt == "csv":
+        frame.to_csv(output, index=False, float_format="%.6g", lineterminator="\n")
+        return
+    for record in frame.to_dict(orient="records"):
+        clean = {}
+        for key, value in record.items():
+            if isinstance(value, float) and not np.isfinite(value):
+                value = None
+            elif value is pd.NA:
+                value = None
+            elif isinstance(value, (np.integer,)):
+                value = int(value)
+            if key == "flags":
+                value = [c for c in (value or "").split(";") if c]
+            clean[key] = value
+        output.write(json.dumps(clean, ensure_ascii=False) + "\n")
+
+
+def run_analyze(args) -> int:
+    try:
+        thresholds = _thresholds(args.threshold)
+        readings = _read_csv(args.readings, "readings")
+        missing = None
+        if args.motors:
+            readings, missing = _join_motors(readings, _read_csv(args.motors, "motors"))
+        result = analyze_frame(readings, thresholds, missing)
+        if args.output:
+            try:
+                with open(args.output, "w", encoding="utf-8", newline="") as fh:
+                    _write(result, fh, args.format)
+            except OSError as exc:
+                raise UsageError(f"cannot write {args.output}: {exc.strerror}") from None
+        else:
+            _write(result, sys.stdout, args.format)
+    except UsageError as exc:
+        print(f"slipwise analyze: {exc}", file=sys.stderr)
+        return 2
+    errors = (result["error"].fillna("") != "").sum()
+    total = len(result)
+    flagged = (result["flags"].fillna("") != "").sum()
+    print(f"{total} readings: {total - errors} interpreted ({flagged} with flags), {errors} with errors",
+          file=sys.stderr)
+    return 1 if errors else 0
