@@ -1,0 +1,123 @@
+"""Connections: the one place where SQLite and PostgreSQL differ."""
+
+from __future__ import annotations
+
+import re
+from contextlib import contextmanager
+from pathlib import Path
+from typing import Iterator
+
+from sqlalchemy import Connection, create_engine, event
+from sqlalchemy.engine import make_url
+
+from . import migrations
+from .errors import SchemaError, SchemaTooNewError
+
+_SCHEMA_NAME = re.compile(r"^[a-z_][a-z0-9_]{0,62}$")
+
+
+def normalise_url(url: str) -> str:
+    """Accept the URL spellings people paste and return one SQLAlchemy understands.
+
+    ``postgres://`` (Heroku style) and ``postgresql://`` become
+    ``postgresql+psycopg://`` (psycopg 3, the driver slipwise installs).
+    """
+    url = url.strip()
+    for prefix in ("postgres://", "postgresql://"):
+        if url.startswith(prefix):
+            return "postgresql+psycopg://" + url[len(prefix):]
+    return url
+
+
+def sqlite_url(path: str | Path) -> str:
+    return "sqlite:///" + str(Path(path).resolve())
+
+
+class Database:
+    """An SQLAlchemy engine with slipwise's connection settings.
+
+    ``read()`` and ``write()`` yield a connection inside a transaction that
+    commits on success and rolls back on any exception, so a failed request
+    leaves nothing half-written.
+    """
+
+    def __init__(self, url: str, schema: str | None = None, pool_size: int = 8):
+        self.url = normalise_url(url)
+        parsed = make_url(self.url)
+        self.dialect = parsed.get_backend_name()
+        if self.dialect not in ("sqlite", "postgresql"):
+            raise SchemaError(f"DATABASE_URL must be sqlite:///... or postgresql+psycopg://..., not {self.dialect}")
+        if schema is not None and not _SCHEMA_NAME.match(schema):
+            raise SchemaError("database schema name must be lower-case letters, digits and _")
+        self.schema = schema
+        if self.dialect == "sqlite":
+            if parsed.database and parsed.database != ":memory:":
+                Path(parsed.database).parent.mkdir(parents=True, exist_ok=True)
+            self.engine = create_engine(self.url, pool_size=pool_size, max_overflow=8,
+                                        connect_args={"timeout": 30, "check_same_thread": False})
+            event.listen(self.engine, "connect", _sqlite_on_connect)
+            event.listen(self.engine, "begin", _sqlite_on_begin)
+        else:
+            connect_args = {}
+            if schema:
+                connect_args["options"] = f"-csearch_path={schema}"
+            self.engine = create_engine(self.url, pool_size=pool_size, max_overflow=8, pool_pre_ping=True,
+                                        connect_args=connect_args)
+
+    @contextmanager
+    def read(self) -> Iterator[Connection]:
+        with self.engine.connect() as conn:
+            with conn.begin():
+                yield conn
+
+    @contextmanager
+    def write(self) -> Iterator[Connection]:
+        with self.engine.connect() as conn:
+            conn = conn.execution_options(slipwise_write=True)
+            with conn.begin():
+                yield conn
+
+    # --- schema ------------------------------------------------------------
+    def version(self) -> int:
+        with self.read() as conn:
+            return migrations.current_version(conn)
+
+    def upgrade(self, target: int = migrations.HEAD) -> tuple[int, int]:
+        with self.write() as conn:
+            return migrations.upgrade(conn, target)
+
+    def check_current(self) -> None:
+        """Raise unless the schema is exactly the one this code was written for."""
+        v = self.version()
+        if v > migrations.HEAD:
+            raise SchemaTooNewError(f"the database is at schema version {v}, newer than this slipwise "
+                                    f"(version {migrations.HEAD})")
+        if v < migrations.HEAD:
+            raise SchemaError(f"the database is at schema version {v}; run slipwise serve to upgrade it")
+
+    def describe(self) -> str:
+        return make_url(self.url).render_as_string(hide_password=True)
+
+    def dispose(self) -> None:
+        self.engine.dispose()
+
+
+def _sqlite_on_connect(dbapi_conn, _record) -> None:
+    # let SQLAlchemy's begin event emit BEGIN itself (pysqlite's implicit BEGIN is deferred and
+    # cannot be made IMMEDIATE), see the SQLAlchemy "Serializable isolation / Savepoints" notes
+    dbapi_conn.isolation_level = None
+    cur = dbapi_conn.cursor()
+    cur.execute("PRAGMA journal_mode=WAL")
+    cur.execute("PRAGMA foreign_keys=ON")
+    cur.execute("PRAGMA busy_timeout=30000")
+    cur.execute("PRAGMA synchronous=NORMAL")
+    cur.close()
+
+
+def _sqlite_on_begin(conn) -> None:
+    # A write transaction takes the write lock at BEGIN: a deferred one that reads first and writes
+    # later gets SQLITE_BUSY without waiting when another process wrote in between (WAL snapshot).
+    if conn.get_execution_options().get("slipwise_write"):
+        conn.exec_driver_sql("BEGIN IMMEDIATE")
+    else:
+        conn.exec_driver_sql("BEGIN")

@@ -1,0 +1,34 @@
+"""Exceptions raised by the store; the web layer and the CLI translate them."""
+
+from __future__ import annotations
+
+
+class StoreError(Exception):
+    """Base class: a request the store refuses, with the field it concerns."""
+
+    code = "store_error"
+
+    def __init__(self, message: str, field: str | None = None):
+        super().__init__(message)
+        self.message = message
+        self.field = field
+
+
+class NotFoundError(StoreError):
+    code = "not_found"
+
+
+class ConflictError(StoreError):
+    code = "conflict"
+
+
+class ValidationError(StoreError):
+    code = "invalid_input"
+
+
+class SchemaError(Exception):
+    """The database schema cannot be used by this version of slipwise."""
+
+
+class SchemaTooNewError(SchemaError):
+    """The database was written by a newer slipwise; refuse to touch it."""

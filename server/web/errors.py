@@ -1,0 +1,69 @@
+"""One error shape for every failure: ``{"error": {"code", "message", "field"}}``."""
+
+from __future__ import annotations
+
+import json
+import logging
+
+from flask import Flask, Response
+from werkzeug.exceptions import HTTPException
+
+from server.store.errors import ConflictError, NotFoundError, SchemaError, StoreError, ValidationError
+
+log = logging.getLogger("slipwise.web")
+
+_STORE_STATUS = {ValidationError: 400, NotFoundError: 404, ConflictError: 409}
+_HTTP_CODES = {400: "bad_request", 401: "unauthorized", 403: "forbidden", 404: "not_found",
+               405: "method_not_allowed", 406: "not_acceptable", 409: "conflict", 413: "body_too_large",
+               414: "uri_too_long", 415: "unsupported_media_type", 429: "too_many_attempts",
+               431: "headers_too_large", 500: "internal_error", 501: "not_implemented", 503: "unavailable"}
+
+
+class ApiError(Exception):
+    """An error the API reports to the caller as is."""
+
+    def __init__(self, status: int, code: str, message: str, field: str | None = None,
+                 headers: dict | None = None):
+        super().__init__(message)
+        self.status, self.code, self.message, self.field = status, code, message, field
+        self.headers = headers or {}
+
+
+def error_response(status: int, code: str, message: str, field: str | None = None,
+                   headers: dict | None = None) -> Response:
+    body = json.dumps({"error": {"code": code, "message": message, "field": field}}, ensure_ascii=False)
+    resp = Response(body, status=status, mimetype="application/json")
+    for k, v in (headers or {}).items():
+        resp.headers[k] = v
+    return resp
+
+
+def register(app: Flask) -> None:
+    @app.errorhandler(ApiError)
+    def _api(e: ApiError):
+        return error_response(e.status, e.code, e.message, e.field, e.headers)
+
+    @app.errorhandler(StoreError)
+    def _store(e: StoreError):
+        status = next((s for cls, s in _STORE_STATUS.items() if isinstance(e, cls)), 400)
+        return error_response(status, e.code, e.message, e.field)
+
+    @app.errorhandler(SchemaError)
+    def _schema(e: SchemaError):
+        log.error("database schema problem: %s", e)
+        return error_response(503, "unavailable", "the database schema does not match this server")
+
+    @app.errorhandler(HTTPException)
+    def _http(e: HTTPException):
+        status = e.code or 500
+        message = e.description or e.name
+        if status == 413:
+            limit = app.config["MAX_CONTENT_LENGTH"]
+            message = f"the request body is larger than the limit of {limit} bytes"
+        return error_response(status, _HTTP_CODES.get(status, "error"), message, None,
+                              dict(e.get_headers()) if status == 405 else None)
+
+    @app.errorhandler(Exception)
+    def _unexpected(e: Exception):
+        log.exception("unexpected error")
+        return error_response(500, "internal_error", "internal error; nothing was stored by this request")

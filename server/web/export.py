@@ -1,0 +1,119 @@
+"""GET /api/v1/export.csv: the commissioning record, one row per reading.
+
+Column order (stable; new columns are only ever appended):
+
+1. ``reading_id, client_id, site, tag, location, description, motor_revision``
+2. the nameplate fields of the engine's contract except ``tag``, in contract
+   order; a name that is also a result column gets the prefix ``nameplate_``
+   (``nameplate_poles``, ``nameplate_breakdown_torque_pct``)
+3. the reading fields of the contract, in contract order (``taken_at`` last)
+4. every result column of the contract, in contract order; ``flags`` is the
+   flag codes separated by spaces, ``findings`` the finding texts separated by
+   `` | ``
+5. ``cautions, technician, technician_name, received_at, supersedes,
+   superseded_by, review_decision, review_comment, reviewer, reviewed_at``
+
+UTF-8, a header row, RFC 4180 quoting, ``\\r\\n`` line ends. Empty cell = not
+given / not applicable. Numbers are written as numbers. A text cell starting
+with ``=``, ``+``, ``-``, ``@``, tab or carriage return gets a leading ``'``
+so a spreadsheet shows it as text instead of running it as a formula (OWASP,
+"CSV Injection").
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+from typing import Any, Iterable, Iterator, Mapping
+
+from flask import Blueprint, Response
+
+from server.contract import NAMEPLATE_FIELDS, READING_FIELDS, RESULT_COLUMNS
+from server.store import readings as store_readings
+
+from .auth import requires
+from .params import date_param, query, text_param
+from .state import state
+
+bp = Blueprint("export", __name__)
+
+_NAMEPLATE = tuple(f for f in NAMEPLATE_FIELDS if f != "tag")
+_NAMEPLATE_HEADERS = tuple(("nameplate_" + f) if f in RESULT_COLUMNS else f for f in _NAMEPLATE)
+_READING_NUMBERS = tuple(f for f in READING_FIELDS if f != "taken_at")
+_TAIL = ("cautions", "technician", "technician_name", "received_at", "supersedes", "superseded_by",
+         "review_decision", "review_comment", "reviewer", "reviewed_at")
+
+EXPORT_COLUMNS: tuple[str, ...] = (("reading_id", "client_id", "site", "tag", "location", "description",
+                                    "motor_revision") + _NAMEPLATE_HEADERS + _READING_NUMBERS + ("taken_at",)
+                                   + RESULT_COLUMNS + _TAIL)
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+_ROWS_PER_CHUNK = 1000
+
+
+def neutralise(value: Any) -> Any:
+    """Prefix text a spreadsheet would evaluate; numbers and None pass unchanged."""
+    if value.__class__ is str and value and value[0] in _FORMULA_START:
+        return "'" + value
+    return value
+
+
+def _result_cell(name: str, value: Any) -> Any:
+    if name == "flags":
+        return " ".join(value or [])
+    if name == "findings":
+        return " | ".join(f.get("text", "") for f in (value or []))
+    return value
+
+
+def export_row(row: Mapping[str, Any]) -> list[Any]:
+    inputs = json.loads(row["inputs"])
+    result = json.loads(row["result"])
+    findings = result.get("findings") or []
+    cautions = list(dict.fromkeys(f["caution"] for f in findings if f.get("caution")))
+    reviewed = row["reviewed_at"]
+    cells = [row["id"], row["client_id"], row["site"], row["tag"], row["location"], row["description"],
+             row["motor_revision"]]
+    cells += [row[f] for f in _NAMEPLATE]
+    cells += [inputs.get(f) for f in _READING_NUMBERS]
+    cells.append(row["taken_at"])
+    cells += [_result_cell(c, result.get(c)) for c in RESULT_COLUMNS]
+    cells += [" | ".join(cautions), row["technician"], row["technician_name"], row["received_at"].isoformat(),
+              row["supersedes_id"], row["superseded_by"], row["decision"], row["comment"], row["reviewer"],
+              reviewed.isoformat() if reviewed else None]
+    # the stored engine version is the one that interpreted this row
+    cells[EXPORT_COLUMNS.index("engine_version")] = row["engine_version"]
+    return [neutralise(c) for c in cells]
+
+
+def csv_chunks(rows: Iterable[Mapping[str, Any]]) -> Iterator[str]:
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\r\n")
+    writer.writerow(EXPORT_COLUMNS)
+    n = 0
+    for row in rows:
+        writer.writerow(export_row(row))
+        n += 1
+        if n % _ROWS_PER_CHUNK == 0:
+            yield buf.getvalue()
+            buf.seek(0)
+            buf.truncate()
+    yield buf.getvalue()
+
+
+@bp.get("/export.csv")
+@requires("supervisor")
+def export_csv():
+    args = query(("date", "site"))
+    filters = dict(date=date_param(args), site=text_param(args, "site"))
+    db = state().db
+
+    def generate():
+        with db.read() as conn:
+            yield from csv_chunks(store_readings.iter_export_rows(conn, **filters))
+
+    name = "slipwise-record" + (f"-{filters['date']}" if filters["date"] else "") + ".csv"
+    resp = Response(generate(), mimetype="text/csv")
+    resp.headers["Content-Type"] = "text/csv; charset=utf-8"
+    resp.headers["Content-Disposition"] = f'attachment; filename="{name}"'
+    return resp

@@ -1,0 +1,72 @@
+"""Health, the engine without storage, the audit trail, the OpenAPI document."""
+
+from __future__ import annotations
+
+import json
+
+from flask import Blueprint, Response, g, jsonify
+
+from server.contract import ENGINE_VERSION, INPUT_FIELDS
+from server.store import SCHEMA_VERSION, audit, validation
+from server.store import motors as store_motors
+from server.store.readings import engine_record, to_json
+from server.store.types import utcnow
+
+from .auth import requires
+from .interpretation import interpret
+from .openapi import document
+from .params import date_param, int_param, query
+from .security import json_body
+from .state import state
+
+bp = Blueprint("misc", __name__)
+
+
+@bp.get("/health")
+def health():
+    query(())
+    st = state()
+    try:
+        version = st.db.version()
+    except Exception:  # the database is down: say so instead of failing
+        return jsonify({"status": "unavailable", "engine_version": ENGINE_VERSION}), 503
+    return jsonify({"status": "ok", "engine_version": ENGINE_VERSION, "schema_version": version,
+                    "database": st.db.dialect})
+
+
+@bp.post("/interpret")
+@requires("technician")
+def interpret_without_storing():
+    body = json_body()
+    validation.unknown_fields(body, frozenset(INPUT_FIELDS) | {"motor_id"})
+    reading = validation.reading(body)
+    taken_at, _, _ = validation.taken_at(body.get("taken_at"), utcnow())
+    if body.get("motor_id") is not None:
+        motor_id = validation.identifier("motor_id", body["motor_id"])
+        nameplate_keys = set(INPUT_FIELDS) - set(reading) - {"taken_at"}
+        given = sorted(k for k in body if k in nameplate_keys)
+        if given:
+            from .errors import ApiError
+            raise ApiError(400, "invalid_input", "give motor_id or the nameplate fields, not both", given[0])
+        with state().db.read() as conn:
+            motor = store_motors.get_motor(conn, motor_id)
+        record = engine_record(motor, motor["tag"], reading, taken_at)
+    else:
+        tag = validation.text("tag", body.get("tag"), limit=80)
+        record = engine_record(validation.nameplate(body) | {"location": "", "description": ""}, tag, reading,
+                               taken_at)
+    return Response(to_json(interpret(record)), mimetype="application/json")
+
+
+@bp.get("/audit")
+@requires("supervisor")
+def audit_trail():
+    args = query(("date", "limit"))
+    with state().db.read() as conn:
+        entries = audit.list_entries(conn, date=date_param(args), limit=int_param(args, "limit", 1, 10000, 1000))
+    return jsonify({"entries": entries, "count": len(entries)})
+
+
+@bp.get("/openapi.json")
+def openapi():
+    return Response(json.dumps(document(), indent=1), mimetype="application/json")

@@ -1,0 +1,81 @@
+"""Query-string and path parameters, checked with errors that name them."""
+
+from __future__ import annotations
+
+import re
+from datetime import date as _date
+
+from flask import request
+from werkzeug.routing import BaseConverter
+
+from server.contract import FLAG_CODES
+
+from .errors import ApiError
+
+_DATE = re.compile(r"^\d{4}-\d{2}-\d{2}$")
+MAX_ID = 2 ** 62
+
+
+class IdConverter(BaseConverter):
+    """A record id in a path: 1 to 18 digits (larger values are no id and give 404)."""
+
+    regex = r"[0-9]{1,18}"
+
+    def to_python(self, value: str) -> int:
+        return int(value)
+
+    def to_url(self, value) -> str:
+        return str(int(value))
+
+
+def query(allowed: tuple[str, ...]) -> dict[str, str]:
+    args = {}
+    for key in request.args:
+        if key not in allowed:
+            raise ApiError(400, "invalid_input", f"unknown query parameter {key[:60]!r}; allowed: " + ", ".join(allowed),
+                           key[:60])
+        values = request.args.getlist(key)
+        if len(values) != 1:
+            raise ApiError(400, "invalid_input", f"give {key} once", key)
+        args[key] = values[0]
+    return args
+
+
+def date_param(args: dict, name: str = "date") -> str | None:
+    value = args.get(name)
+    if value is None or value == "":
+        return None
+    try:
+        if not _DATE.match(value):
+            raise ValueError
+        _date.fromisoformat(value)
+    except ValueError:
+        raise ApiError(400, "invalid_input", f"{name} must be a date written YYYY-MM-DD", name) from None
+    return value
+
+
+def text_param(args: dict, name: str, limit: int = 120) -> str | None:
+    value = args.get(name)
+    if value is None or value == "":
+        return None
+    if len(value) > limit:
+        raise ApiError(400, "invalid_input", f"{name} must be at most {limit} characters", name)
+    return value
+
+
+def flag_param(args: dict) -> str | None:
+    value = args.get("flag")
+    if value is None or value == "":
+        return None
+    if value not in FLAG_CODES:
+        raise ApiError(400, "invalid_input", "flag must be one of " + ", ".join(FLAG_CODES), "flag")
+    return value
+
+
+def int_param(args: dict, name: str, low: int, high: int, default: int | None = None) -> int | None:
+    value = args.get(name)
+    if value is None or value == "":
+        return default
+    if not value.isdigit() or not low <= int(value) <= high:
+        raise ApiError(400, "invalid_input", f"{name} must be a whole number from {low} to {high}", name)
+    return int(value)

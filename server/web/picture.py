@@ -1,0 +1,60 @@
+"""The torque-speed picture of a reading, drawn with matplotlib's Agg back end (imported on first use)."""
+
+from __future__ import annotations
+
+import io
+import threading
+from typing import Any, Mapping
+
+_lock = threading.Lock()  # matplotlib's font cache and rcParams are not thread-safe
+
+
+def render_torque_speed_svg(curve: Mapping[str, Any], title: str) -> bytes:
+    """SVG of the curves returned by ``server.engine.torque_speed_curve``.
+
+    Draws the motor's torque-speed curve at rated and at measured voltage, the
+    driven load's torque law, the operating point and the breakdown point.
+    Axes: shaft speed [rpm], torque [N·m].
+    """
+    with _lock:
+        import matplotlib
+        matplotlib.use("Agg", force=False)
+        from matplotlib.figure import Figure
+
+        matplotlib.rcParams["svg.hashsalt"] = "slipwise"
+        fig = Figure(figsize=(7.5, 4.6), dpi=100)
+        ax = fig.add_subplot(1, 1, 1)
+        speed = curve["speed_rpm"]
+        ax.plot(speed, curve["torque_rated_v_nm"], color="#7a7a7a", linestyle="--", linewidth=1.4,
+                label="motor at rated voltage")
+        ax.plot(speed, curve["torque_measured_v_nm"], color="#1f5fa8", linewidth=2.0,
+                label="motor at measured voltage")
+        ax.plot(speed, curve["load_torque_nm"], color="#b8641c", linewidth=1.6, label="driven load")
+        if curve.get("breakdown_speed_rpm") is not None and curve.get("breakdown_torque_nm") is not None:
+            ax.plot([curve["breakdown_speed_rpm"]], [curve["breakdown_torque_nm"]], marker="^", markersize=9,
+                    color="#a11d2b", linestyle="none",
+                    label=f"breakdown {curve['breakdown_torque_nm']:.0f} N·m at {curve['breakdown_speed_rpm']:.0f} rpm")
+        if curve.get("operating_speed_rpm") is not None and curve.get("operating_torque_nm") is not None:
+            ax.plot([curve["operating_speed_rpm"]], [curve["operating_torque_nm"]], marker="o", markersize=9,
+                    color="#1b7a3a", linestyle="none",
+                    label=f"operating point {curve['operating_torque_nm']:.0f} N·m at "
+                          f"{curve['operating_speed_rpm']:.0f} rpm")
+        else:
+            ax.text(0.02, 0.04, "no operating point: the load torque exceeds the motor torque",
+                    transform=ax.transAxes, fontsize=9, color="#a11d2b")
+        if curve.get("rated_torque_nm") is not None:
+            ax.axhline(curve["rated_torque_nm"], color="#7a7a7a", linewidth=0.8, linestyle=":",
+                       label=f"rated torque {curve['rated_torque_nm']:.0f} N·m")
+        if curve.get("sync_speed_rpm") is not None:
+            ax.axvline(curve["sync_speed_rpm"], color="#7a7a7a", linewidth=0.8, linestyle=":")
+        ax.set_xlabel("shaft speed [rpm]")
+        ax.set_ylabel("torque [N·m]")
+        ax.set_title(title, fontsize=10)
+        ax.set_xlim(left=0)
+        ax.set_ylim(bottom=0)
+        ax.grid(True, linewidth=0.4, alpha=0.6)
+        ax.legend(loc="upper left", fontsize=8, frameon=False)
+        fig.tight_layout()
+        out = io.BytesIO()
+        fig.savefig(out, format="svg", metadata={"Date": None})
+    return out.getvalue()
