@@ -1,0 +1,159 @@
+"""``slipwise demo``: the demo scenario in an SQLite database in the data folder, then serve.
+
+Reads ``motors.csv`` (contract nameplate columns plus site, location,
+description), ``readings.csv`` (tag, reading columns, technician, taken_at;
+optional site) and ``people.csv`` (username, role, full_name). Every reading
+goes through the same validation and engine as POST /api/v1/readings. Loading
+twice adds nothing: client_ids are derived from the rows.
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import os
+import secrets
+import sys
+import uuid
+from pathlib import Path
+
+from server.contract import READING_FIELDS
+
+DEFAULT_SAMPLES = Path(__file__).resolve().parents[1] / "field_samples"
+DEMO_NAMESPACE = uuid.UUID("6f1c7c1e-4b7a-4d1e-9a57-2d0c5e7f4a10")
+CREDENTIALS_FILE = "demo-accounts.json"
+
+
+class DemoError(Exception):
+    pass
+
+
+def _rows(path: Path) -> list[dict[str, str]]:
+    if not path.is_file():
+        raise DemoError(f"demo file not found: {path}")
+    with path.open(encoding="utf-8-sig", newline="") as f:
+        return [{k.strip(): (v or "").strip() for k, v in row.items() if k} for row in csv.DictReader(f)]
+
+
+def load(db, samples: Path, data_dir: Path) -> dict:
+    """Load people, motors and readings; returns counts and the accounts with their passwords."""
+    from server.engine import InputError, interpret_one
+    from server.store import accounts, validation
+    from server.store import motors as store_motors
+    from server.store import readings as store_readings
+    from server.store.errors import StoreError
+    from server.store.readings import Submission
+    from server.store.types import utcnow
+
+    people = _rows(samples / "people.csv")
+    motor_rows = _rows(samples / "motors.csv")
+    reading_rows = _rows(samples / "readings.csv")
+
+    cred_path = data_dir / CREDENTIALS_FILE
+    known = json.loads(cred_path.read_text()) if cred_path.exists() else {}
+    creds = []
+    with db.write() as conn:
+        existing = {u["username"] for u in accounts.list_users(conn)}
+        for i, p in enumerate(people, start=2):
+            name = p.get("username", "")
+            password = known.get(name) or secrets.token_urlsafe(9)
+            if name not in existing:
+                try:
+                    accounts.add_user(conn, name, p.get("role", ""), password, p.get("full_name", ""))
+                except StoreError as e:
+                    raise DemoError(f"people.csv line {i}: {e.message}") from None
+            elif name not in known:
+                continue  # made outside the demo: its password is not ours to print
+            known[name] = password
+            creds.append({"username": name, "role": p.get("role"), "full_name": p.get("full_name", ""),
+                          "password": password})
+    fd = os.open(cred_path, os.O_WRONLY | os.O_CREAT | os.O_TRUNC, 0o600)
+    with os.fdopen(fd, "w") as f:
+        json.dump(known, f, indent=1)
+
+    motor_ids: dict[tuple[str, str], int] = {}
+    with db.write() as conn:
+        for m in store_motors.list_motors(conn):
+            motor_ids[(m["site"], m["tag"])] = m["id"]
+        made = 0
+        for i, row in enumerate(motor_rows, start=2):
+            try:
+                site = validation.text("site", row.get("site"), required=True)
+                tag = validation.tag(row.get("tag"))
+                fields = validation.nameplate(row)
+                fields["location"] = validation.text("location", row.get("location"))
+                fields["description"] = validation.text("description", row.get("description"))
+            except StoreError as e:
+                raise DemoError(f"motors.csv line {i}: {e.message}") from None
+            if (site, tag) not in motor_ids:
+                motor_ids[(site, tag)] = store_motors.create_motor(conn, None, site, tag, fields)["id"]
+                made += 1
+
+    by_tag: dict[str, list[int]] = {}
+    for (site, tag), mid in motor_ids.items():
+        by_tag.setdefault(tag, []).append(mid)
+    with db.read() as conn:
+        users = {u["username"]: u for u in accounts.list_users(conn)}
+
+    def interpret(record):
+        try:
+            return interpret_one(record)
+        except InputError as e:
+            raise validation.ValidationError(e.message, e.field) from None
+
+    stored = replayed = 0
+    for i, row in enumerate(reading_rows, start=2):
+        tag = row.get("tag", "")
+        if row.get("site"):
+            ids = [motor_ids[(row["site"], tag)]] if (row["site"], tag) in motor_ids else []
+        else:
+            ids = by_tag.get(tag, [])
+        if len(ids) != 1:
+            raise DemoError(f"readings.csv line {i}: tag {tag!r} names {len(ids)} motors; it must name one")
+        user = users.get(row.get("technician", ""))
+        if user is None:
+            raise DemoError(f"readings.csv line {i}: technician {row.get('technician')!r} is not in people.csv")
+        try:
+            inputs = validation.reading(row)
+            taken = validation.taken_at(row.get("taken_at"), utcnow())
+            key = json.dumps([tag, row.get("site", ""), {k: row.get(k, "") for k in READING_FIELDS}], sort_keys=True)
+            sub = Submission(str(uuid.uuid5(DEMO_NAMESPACE, key)), ids[0], None, inputs, *taken)
+            _, created = store_readings.submit(db, user, sub, interpret)
+        except StoreError as e:
+            raise DemoError(f"readings.csv line {i}: {e.message}") from None
+        stored += created
+        replayed += not created
+    return {"accounts": creds, "motors_added": made, "readings_added": stored, "readings_present": replayed}
+
+
+def run_demo(args, data_dir: Path) -> int:
+    from server.store import Database, sqlite_url
+    from server.store.errors import SchemaError
+
+    samples = Path(args.samples).resolve() if args.samples else DEFAULT_SAMPLES
+    url = args.database_url or sqlite_url(data_dir / "slipwise.sqlite3")
+    data_dir.mkdir(parents=True, exist_ok=True)
+    db = Database(url)
+    try:
+        db.upgrade()
+        summary = load(db, samples, data_dir)
+    except (DemoError, SchemaError) as e:
+        print(f"slipwise demo: {e}", file=sys.stderr)
+        return 2
+    finally:
+        db.dispose()
+    print(f"demo database {db.describe()}")
+    print(f"loaded from {samples}: {summary['motors_added']} motors and {summary['readings_added']} readings added"
+          + (f" ({summary['readings_present']} already there)" if summary["readings_present"] else ""))
+    print("demo accounts (fictional people; passwords kept in "
+          f"{data_dir / CREDENTIALS_FILE}):")
+    for a in summary["accounts"]:
+        print(f"  {a['username']:<12} {a['role']:<11} password {a['password']:<14} {a['full_name']}")
+    sys.stdout.flush()
+    if args.no_serve:
+        return 0
+    from server.serving import serve
+    config = {"DATA_DIR": str(data_dir), "DATABASE_URL": url}
+    if getattr(args, "thresholds", None):
+        config["THRESHOLDS"] = args.thresholds
+    return serve(args, config)
