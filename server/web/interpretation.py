@@ -32,8 +32,11 @@ def check_nameplate(tag: str, fields: Mapping[str, Any]) -> None:
     Only errors on nameplate fields count: the synthetic reading is there to
     exercise the nameplate's own cross-checks (speed below synchronous, ...).
     """
+    volts, amps = fields.get("rated_voltage_v"), fields.get("rated_current_a")
     record = {"tag": tag, **{k: v for k, v in fields.items() if k in NAMEPLATE_FIELDS},
-              "frequency_hz": fields.get("rated_frequency_hz"), "speed_rpm": fields.get("rated_speed_rpm")}
+              "frequency_hz": fields.get("rated_frequency_hz"), "speed_rpm": fields.get("rated_speed_rpm"),
+              "current_l1_a": amps, "current_l2_a": amps, "current_l3_a": amps,
+              "voltage_l12_v": volts, "voltage_l23_v": volts, "voltage_l31_v": volts}
     try:
         interpret(record)
     except ValidationError as e:
