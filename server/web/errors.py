@@ -60,8 +60,8 @@ def register(app: Flask) -> None:
         if status == 413:
             limit = app.config["MAX_CONTENT_LENGTH"]
             message = f"the request body is larger than the limit of {limit} bytes"
-        return error_response(status, _HTTP_CODES.get(status, "error"), message, None,
-                              dict(e.get_headers()) if status == 405 else None)
+        allow = {k: v for k, v in e.get_headers() if k == "Allow"}
+        return error_response(status, _HTTP_CODES.get(status, "error"), message, None, allow)
 
     @app.errorhandler(Exception)
     def _unexpected(e: Exception):
