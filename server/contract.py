@@ -121,7 +121,7 @@ RESULT_COLUMNS: tuple[str, ...] = (
     # extensions
     "slip_rpm", "torque_low_pct", "torque_high_pct",
     "predicted_current_a", "predicted_power_factor",
-    "breakdown_torque_pct", "starting_margin", "operating_side",
+    "breakdown_torque_now_pct", "starting_margin", "operating_side",
     "error_field", "engine_version",
 )
 TEXT_RESULT_COLUMNS = frozenset({"efficiency_class", "supply_zone", "flags", "findings", "error",

@@ -9,6 +9,7 @@ with plain columns or records.
 from __future__ import annotations
 
 import math
+import os
 import threading
 from collections import OrderedDict
 from typing import Any, Iterable, Mapping, Sequence
@@ -19,7 +20,7 @@ import pandas as pd
 from . import contract as C
 from .physics import circuit as ckt
 from .physics import efficiency, efficiency_class, load, speed, supply, torque_speed, typical
-from .physics.flags import FLAG_ORDER, Thresholds, describe
+from .physics.flags import Thresholds, combination_mask, describe
 from .physics.units import HORSEPOWER_W, KILOWATT_W, RPM_TO_RAD_S, SQRT3
 
 __all__ = ["InputError", "Thresholds", "interpret_columns", "interpret_one", "interpret_records",
@@ -60,15 +61,19 @@ Thresholds.from_mapping = staticmethod(thresholds_from_mapping)  # type: ignore[
 
 # --------------------------------------------------------------------------- parsing
 _CONTROL = "".join(chr(c) for c in range(32)) + "\x7f"
+_NAMEPLATE_NUMBER_NAMES = tuple(f.name for f in C.NAMEPLATE_NUMBERS)
+_CHOICE_NAMES = tuple(f.name for f in C.NAMEPLATE_CHOICES)
 
 
 def _column(cols: Mapping[str, Any], name: str, n: int):
     value = cols.get(name)
     if value is None:
         return None
-    arr = value if isinstance(value, (np.ndarray, pd.Series)) else np.asarray(value, dtype=object)
-    if np.ndim(arr) == 0:
-        arr = np.full(n, arr.item() if isinstance(arr, np.ndarray) else arr, dtype=object)
+    if isinstance(value, pd.Series):
+        value = value.to_numpy()
+    arr = value if isinstance(value, np.ndarray) else np.asarray(value, dtype=object)
+    if arr.ndim == 0:
+        arr = np.full(n, arr.item(), dtype=object)
     return arr
 
 
@@ -78,40 +83,25 @@ class _Errors:
     def __init__(self, n: int):
         self.message = np.full(n, "", dtype=object)
         self.field = np.full(n, "", dtype=object)
+        self.bad = np.zeros(n, dtype=bool)
 
     def add(self, bad, field: str, make_message):
-        bad = np.asarray(bad, dtype=bool) & (self.message == "")
-        if bad.any():
-            idx = np.flatnonzero(bad)
-            for i in idx:
-                self.message[i] = make_message(i)
-                self.field[i] = field
+        new = np.asarray(bad, dtype=bool) & ~self.bad
+        if not new.any():
+            return
+        for i in np.flatnonzero(new):
+            self.message[i] = make_message(i)
+            self.field[i] = field
+        self.bad |= new
+
+    def take(self, index) -> "_Errors":
+        out = _Errors(0)
+        out.message, out.field, out.bad = self.message[index], self.field[index], self.bad[index]
+        return out
 
     @property
     def ok(self):
-        return self.message == ""
-
-
-def _to_float(raw, n: int, name: str, errors: _Errors):
-    if raw is None:
-        return np.full(n, np.nan)
-    if isinstance(raw, (pd.Series, np.ndarray)) and np.asarray(raw).dtype.kind in "fiub":
-        return np.asarray(raw, dtype=float)
-    obj = np.asarray(raw, dtype=object)
-    blank = pd.isna(pd.Series(obj)).to_numpy() | np.array(
-        [isinstance(v, str) and v.strip() == "" for v in obj], dtype=bool)
-    # booleans are not numbers here
-    is_bool = np.array([isinstance(v, (bool, np.bool_)) for v in obj], dtype=bool)
-    num = pd.to_numeric(pd.Series(np.where(blank | is_bool, np.nan, obj)), errors="coerce").to_numpy(
-        dtype=float, copy=True)
-    not_number = ~blank & (np.isnan(num) | is_bool)
-    # "nan" typed as text is a number to pandas; treat it as not a number
-    text_nan = np.array([isinstance(v, str) and v.strip().lower() in ("nan", "+nan", "-nan") for v in obj],
-                        dtype=bool)
-    not_number |= text_nan & ~blank
-    errors.add(not_number, name, lambda i: f"{name}: {_show(obj[i])} is not a number")
-    num[not_number] = np.nan
-    return num
+        return ~self.bad
 
 
 def _show(value) -> str:
@@ -121,7 +111,45 @@ def _show(value) -> str:
     return repr(text)
 
 
-def _check_range(values, spec: C.NumberField, errors: _Errors, present=None):
+def _to_float(raw, n: int, name: str, errors: _Errors):
+    if raw is None:
+        return np.full(n, np.nan)
+    arr = np.asarray(raw)
+    if arr.dtype.kind in "fiu":
+        return arr.astype(float, copy=True)
+    if arr.dtype.kind == "b":
+        errors.add(np.ones(n, dtype=bool), name, lambda i: f"{name}: {_show(arr[i])} is not a number")
+        return np.full(n, np.nan)
+    # text or mixed: decide per distinct value (few of them in practice)
+    codes, uniques = pd.factorize(pd.Series(arr, dtype=object), use_na_sentinel=True)
+    values = np.full(len(uniques), np.nan)
+    bad_u = np.zeros(len(uniques), dtype=bool)
+    for k, v in enumerate(uniques):
+        if isinstance(v, (bool, np.bool_)):
+            bad_u[k] = True
+            continue
+        if isinstance(v, (int, float, np.integer, np.floating)):
+            values[k] = float(v)
+            continue
+        text = str(v).strip()
+        if text == "":
+            continue
+        try:
+            x = float(text)
+        except ValueError:
+            bad_u[k] = True
+            continue
+        if math.isnan(x):
+            bad_u[k] = True        # "nan" typed as text is not a reading
+        else:
+            values[k] = x
+    out = np.append(values, np.nan)[codes]          # code -1 (missing) picks the trailing NaN
+    bad = np.append(bad_u, False)[codes]
+    errors.add(bad, name, lambda i: f"{name}: {_show(arr[i])} is not a number")
+    return out
+
+
+def _check_range(values, spec: C.NumberField, errors: _Errors):
     with np.errstate(invalid="ignore"):
         outside = ~np.isnan(values) & ((values < spec.low) | (values > spec.high) | ~np.isfinite(values))
     errors.add(outside, spec.name,
@@ -131,26 +159,27 @@ def _check_range(values, spec: C.NumberField, errors: _Errors, present=None):
         errors.add(frac, spec.name, lambda i: f"{spec.name} = {values[i]:g} must be a whole number "
                                               f"({spec.range_text()})")
     if spec.required:
-        errors.add(np.isnan(values), spec.name,
-                   lambda i: f"{spec.name} is required ({spec.range_text()})")
+        errors.add(np.isnan(values), spec.name, lambda i: f"{spec.name} is required ({spec.range_text()})")
 
 
 def _parse_text(raw, n: int):
+    """Stripped text per row ("" for blank), decided per distinct value."""
     if raw is None:
         return np.full(n, "", dtype=object)
-    obj = np.asarray(raw, dtype=object)
-    out = np.empty(n, dtype=object)
-    for i, v in enumerate(obj):
-        out[i] = "" if v is None or (isinstance(v, float) and math.isnan(v)) else str(v).strip()
-    return out
+    codes, uniques = pd.factorize(pd.Series(np.asarray(raw, dtype=object), dtype=object), use_na_sentinel=True)
+    clean = np.array(["" if (isinstance(v, float) and math.isnan(v)) else str(v).strip() for v in uniques] + [""],
+                     dtype=object)
+    return clean[codes]          # code -1 (missing) picks the trailing ""
 
 
 def _parse_choice(raw, n: int, spec: C.ChoiceField, errors: _Errors, upper: bool):
     text = _parse_text(raw, n)
-    norm = np.array([t.upper() if upper else t.lower() for t in text], dtype=object)
-    bad = (norm != "") & ~np.isin(norm, spec.choices)
-    errors.add(bad, spec.name, lambda i: f"{spec.name}: {_show(text[i])} is not allowed; "
-                                         f"use {spec.range_text()}")
+    uniq, inv = np.unique(text.astype(str), return_inverse=True)
+    norm_u = np.array([t.upper() if upper else t.lower() for t in uniq], dtype=object)
+    bad_u = (norm_u != "") & ~np.isin(norm_u, spec.choices)
+    norm = norm_u[inv].astype(object)
+    bad = bad_u[inv]
+    errors.add(bad, spec.name, lambda i: f"{spec.name}: {_show(text[i])} is not allowed; use {spec.range_text()}")
     norm[bad] = ""
     return norm
 
@@ -163,18 +192,39 @@ def _nanmean_present(arrays):
     return mean, count
 
 
+def _group_nameplates(cols: Mapping[str, Any], n: int):
+    """Rows sharing one nameplate: (first row of each, row -> nameplate index)."""
+    h = np.zeros(n, dtype=np.uint64)
+    mult = np.uint64(0x100000001B3)
+    with np.errstate(over="ignore"):
+        for name in C.NAMEPLATE_FIELDS:
+            raw = _column(cols, name, n)
+            if raw is None:
+                continue
+            arr = np.asarray(raw)
+            if arr.dtype.kind == "f":
+                part = np.ascontiguousarray(np.where(np.isnan(arr), np.nan, arr + 0.0)).view(np.uint64)
+            elif arr.dtype.kind in "iub":
+                part = arr.astype(np.int64).view(np.uint64)
+            else:
+                part = pd.factorize(pd.Series(arr, dtype=object))[0].astype(np.int64).view(np.uint64)
+            part = part ^ (part >> np.uint64(29))
+            h = (h ^ part) * mult
+            h ^= h >> np.uint64(32)
+    inverse, uniques = pd.factorize(h)
+    first = np.empty(len(uniques), dtype=np.int64)
+    first[inverse[::-1]] = np.arange(n - 1, -1, -1)      # first row of each group
+    return first, inverse.astype(np.int64)
+
+
 class _Parsed(dict):
-    """Parsed columns by contract name, plus derived nameplate values."""
+    """Parsed columns by contract name, plus derived values."""
 
 
-def _parse(cols: Mapping[str, Any]) -> tuple[_Parsed, _Errors, int]:
-    lengths = {len(v) for v in cols.values() if np.ndim(v) > 0}
-    if len(lengths) > 1:
-        raise ValueError("columns differ in length")
-    n = lengths.pop() if lengths else 1
+def _parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[_Parsed, _Errors]:
+    """Validate distinct nameplates and derive everything that depends on them alone."""
     errors = _Errors(n)
     p = _Parsed()
-
     tag = _parse_text(_column(cols, "tag", n), n)
     errors.add(tag == "", "tag", lambda i: f"tag is required (1 to {C.TAG_MAX_CHARS} characters)")
     errors.add(np.array([len(t) > C.TAG_MAX_CHARS for t in tag], dtype=bool), "tag",
@@ -182,8 +232,7 @@ def _parse(cols: Mapping[str, Any]) -> tuple[_Parsed, _Errors, int]:
     errors.add(np.array([any(ch in _CONTROL for ch in t) for t in tag], dtype=bool), "tag",
                lambda i: "tag contains control characters; use printable text only")
     p["tag"] = tag
-
-    for spec in C.NAMEPLATE_NUMBERS + C.READING_NUMBERS:
+    for spec in C.NAMEPLATE_NUMBERS:
         values = _to_float(_column(cols, spec.name, n), n, spec.name, errors)
         if spec.default is not None:
             values = np.where(np.isnan(values), spec.default, values)
@@ -191,14 +240,11 @@ def _parse(cols: Mapping[str, Any]) -> tuple[_Parsed, _Errors, int]:
         p[spec.name] = values
     for spec in C.NAMEPLATE_CHOICES:
         p[spec.name] = _parse_choice(_column(cols, spec.name, n), n, spec, errors, upper=spec.name == "design")
-    p["taken_at"] = _parse_text(_column(cols, "taken_at", n), n)
 
-    # rated power: kW or hp
     kw, hp = p["rated_power_kw"], p["rated_power_hp"]
     hp_kw = hp * HORSEPOWER_W / KILOWATT_W
-    both = ~np.isnan(kw) & ~np.isnan(hp)
     with np.errstate(invalid="ignore", divide="ignore"):
-        disagree = both & (np.abs(kw / hp_kw - 1.0) > 0.02)
+        disagree = ~np.isnan(kw) & ~np.isnan(hp) & (np.abs(kw / hp_kw - 1.0) > 0.02)
     errors.add(disagree, "rated_power_hp",
                lambda i: f"rated_power_kw = {kw[i]:g} and rated_power_hp = {hp[i]:g} disagree "
                          f"({hp[i]:g} hp = {hp_kw[i]:.3g} kW); give one of them")
@@ -219,7 +265,6 @@ def _parse(cols: Mapping[str, Any]) -> tuple[_Parsed, _Errors, int]:
     errors.add(np.isnan(poles) | (poles > 24), "rated_speed_rpm",
                lambda i: f"rated_speed_rpm = {n_r[i]:g} gives no pole count from 2 to 24 at "
                          f"{f_r[i]:g} Hz; check the nameplate")
-    p["poles_used"] = poles
     ns_r = speed.synchronous_speed_rpm(f_r, poles)
     s_r = speed.slip_pu(n_r, ns_r)
     with np.errstate(invalid="ignore"):
@@ -228,8 +273,7 @@ def _parse(cols: Mapping[str, Any]) -> tuple[_Parsed, _Errors, int]:
                lambda i: f"rated_speed_rpm = {n_r[i]:g} gives a rated slip of {100 * s_r[i]:.2g} % against "
                          f"{ns_r[i]:g} rpm synchronous ({poles[i]:g} poles at {f_r[i]:g} Hz); "
                          "the allowed rated slip is 0.1 to 20 %")
-    p["sync_rated_rpm"] = ns_r
-    p["rated_slip"] = s_r
+    p["poles_used"], p["sync_rated_rpm"], p["rated_slip"] = poles, ns_r, s_r
 
     # power balance of the nameplate: P = sqrt(3) V I pf eta
     v_r, i_r = p["rated_voltage_v"], p["rated_current_a"]
@@ -237,11 +281,12 @@ def _parse(cols: Mapping[str, Any]) -> tuple[_Parsed, _Errors, int]:
     p_out = p["rated_kw"] * KILOWATT_W
     pf_np = p["rated_power_factor"]
     eta_np = p["rated_efficiency_pct"] / 100.0
-    eta_typ = efficiency_class.typical_efficiency_pct(p["rated_kw"], poles, f_r) / 100.0
     with np.errstate(invalid="ignore", divide="ignore"):
+        eta_typ = efficiency_class.typical_efficiency_pct(np.nan_to_num(p["rated_kw"], nan=1.0),
+                                                          np.nan_to_num(poles, nan=4.0),
+                                                          np.nan_to_num(f_r, nan=50.0)) / 100.0
         eta = np.where(np.isnan(eta_np), np.where(np.isnan(pf_np), eta_typ, p_out / (apparent * pf_np)), eta_np)
         pf = p_out / (apparent * eta)
-        # neither given and the typical efficiency gives an odd PF: use the typical PF instead
         neither = np.isnan(eta_np) & np.isnan(pf_np)
         pf_typ = typical.typical_power_factor(p["rated_kw"], poles)
         swap = neither & ((pf < 0.30) | (pf > 0.97))
@@ -254,34 +299,76 @@ def _parse(cols: Mapping[str, Any]) -> tuple[_Parsed, _Errors, int]:
                lambda i: f"rated_current_a = {i_r[i]:g} does not fit the nameplate's power, voltage, "
                          f"efficiency and power factor (about {expected_i[i]:.3g} A expected); check the "
                          "nameplate (dual-voltage motors list a current per voltage)")
-    p["eta_used"] = eta
-    p["pf_used"] = pf
-    p["eta_given"] = ~np.isnan(eta_np)
+    p["eta_used"], p["pf_used"] = eta, pf
+    bd = np.where(np.isnan(p["breakdown_torque_pct"]),
+                  typical.lookup(typical.BREAKDOWN_TORQUE_PCT, p["design"]), p["breakdown_torque_pct"])
+    p["bd_ratio"] = bd / 100.0
+    p["x1_share"] = typical.lookup(typical.LEAKAGE_STATOR_SHARE, p["design"])
+    p["lrt_pct"] = np.where(np.isnan(p["locked_rotor_torque_pct"]),
+                            typical.lookup(typical.LOCKED_ROTOR_TORQUE_PCT, p["design"]), p["locked_rotor_torque_pct"])
+    p["breakaway_share"] = typical.lookup(typical.BREAKAWAY_TORQUE_PCT, p["driven_load"]) / 100.0
+    p["fw_share"] = typical.friction_windage_share_of_fixed(poles)
+    # booleans for the per-row physics (comparing text per row is slow)
+    p["is_drive"] = p["supply"] == "drive"
+    p["is_nema"] = np.isin(p["design"], ("A", "B", "C", "D"))
+    p["is_variable_torque"] = p["driven_load"] == "variable_torque"
+    p["is_constant_power"] = p["driven_load"] == "constant_power"
+    p["needs_breakaway"] = np.isin(p["driven_load"], ("constant_torque", "high_breakaway"))
+    p["efficiency_class"] = np.where(np.isnan(eta_np), "", efficiency_class.efficiency_class(
+        np.nan_to_num(p["rated_kw"], nan=1.0), np.nan_to_num(poles, nan=4.0), np.nan_to_num(f_r, nan=50.0),
+        p["rated_efficiency_pct"])).astype(object)
+    return p, errors
 
-    # readings
-    volts = [p[f] for f in C.VOLTAGE_FIELDS]
-    amps = [p[f] for f in C.CURRENT_FIELDS]
-    v_mean, v_count = _nanmean_present(volts)
-    i_mean, i_count = _nanmean_present(amps)
-    on_drive = p["supply"] == "drive"
-    errors.add((i_count == 0), "current_l1_a",
+
+def _derive_nameplates(p: _Parsed, ok: np.ndarray) -> None:
+    """Circuit fit and loss budgets of the valid nameplates (in place)."""
+    idx = np.flatnonzero(ok)
+    sub = _Parsed({k: np.asarray(v)[idx] for k, v in p.items()})
+    circuit = _fit_for_rows(sub)
+    p_out = sub["rated_kw"] * KILOWATT_W
+    budgets = tuple(efficiency.rated_loss_budget(p_out, sub["eta_used"], sub["rated_slip"], share,
+                                                 sub["fw_share"])
+                    for share in (typical.FIXED_LOSS_SHARE, typical.FIXED_LOSS_SHARE_LOW,
+                                  typical.FIXED_LOSS_SHARE_HIGH))
+    i0_r = ckt.no_load_current_a(circuit, sub["rated_voltage_v"], sub["rated_frequency_hz"])
+    p["_valid_index"] = idx
+    p["_valid"] = sub
+    p["_circuit"] = circuit
+    p["_budgets"] = budgets
+    p["_i0_rated"] = i0_r
+
+
+def _parse_readings(cols: Mapping[str, Any], n: int, plate: _Parsed, errors: _Errors) -> _Parsed:
+    """Reading fields per row; ``plate`` holds the nameplate values broadcast to rows."""
+    r = _Parsed()
+    for spec in C.READING_NUMBERS:
+        values = _to_float(_column(cols, spec.name, n), n, spec.name, errors)
+        if spec.default is not None:
+            values = np.where(np.isnan(values), spec.default, values)
+        _check_range(values, spec, errors)
+        r[spec.name] = values
+    r["taken_at"] = _parse_text(_column(cols, "taken_at", n), n)
+    v_mean, v_count = _nanmean_present([r[f] for f in C.VOLTAGE_FIELDS])
+    i_mean, i_count = _nanmean_present([r[f] for f in C.CURRENT_FIELDS])
+    on_drive = plate["supply"] == "drive"
+    v_r, i_r, f_r = plate["rated_voltage_v"], plate["rated_current_a"], plate["rated_frequency_hz"]
+    errors.add(i_count == 0, "current_l1_a",
                lambda i: "at least one line current is required (current_l1_a, 0 to 10000 A)")
     errors.add((v_count == 0) & ~on_drive, "voltage_l12_v",
                lambda i: "at least one line voltage is required on a mains supply (voltage_l12_v, 10 to 16000 V)")
     with np.errstate(invalid="ignore", divide="ignore"):
         v_ratio = v_mean / v_r
         i_ratio = i_mean / i_r
-        low_v = 0.05 if False else 0.5
-        bad_v = ~np.isnan(v_ratio) & (((v_ratio < low_v) & ~on_drive) | (v_ratio < 0.05) | (v_ratio > 1.5))
+        bad_v = ~np.isnan(v_ratio) & (((v_ratio < 0.5) & ~on_drive) | (v_ratio < 0.05) | (v_ratio > 1.5))
         bad_i = ~np.isnan(i_ratio) & ((i_ratio > 8.0) | (i_ratio <= 0.0))
-        f = p["frequency_hz"]
+        f = r["frequency_hz"]
         bad_f = ~on_drive & ~np.isnan(f) & (np.abs(f / f_r - 1.0) > 0.2)
-        ns = speed.synchronous_speed_rpm(f, poles)
-        bad_n = ~np.isnan(ns) & (p["speed_rpm"] >= 2.0 * ns)
-        p_meas = p["power_kw"] * KILOWATT_W
-        bad_p = ~np.isnan(p_meas) & (p_meas > 5.0 * p_out / eta)
-    vfield = np.where(np.isnan(p["voltage_l12_v"]), np.where(np.isnan(p["voltage_l23_v"]), "voltage_l31_v",
-                                                             "voltage_l23_v"), "voltage_l12_v")
+        ns = speed.synchronous_speed_rpm(f, plate["poles_used"])
+        bad_n = ~np.isnan(ns) & (r["speed_rpm"] >= 2.0 * ns)
+        p_in_rated = plate["rated_kw"] * KILOWATT_W / plate["eta_used"]
+        bad_p = ~np.isnan(r["power_kw"]) & (r["power_kw"] * KILOWATT_W > 5.0 * p_in_rated)
+    vfield = np.where(np.isnan(r["voltage_l12_v"]),
+                      np.where(np.isnan(r["voltage_l23_v"]), "voltage_l31_v", "voltage_l23_v"), "voltage_l12_v")
     errors.add(bad_v, "voltage_l12_v",
                lambda i: f"{vfield[i]}: the mean line voltage {v_mean[i]:g} V is outside "
                          f"{'5' if on_drive[i] else '50'} to 150 % of rated_voltage_v ({v_r[i]:g} V); "
@@ -294,14 +381,13 @@ def _parse(cols: Mapping[str, Any]) -> tuple[_Parsed, _Errors, int]:
                          "on a mains supply (allowed 0.8 to 1.2 times rated); if a drive feeds the motor, "
                          "set supply to drive")
     errors.add(bad_n, "speed_rpm",
-               lambda i: f"speed_rpm = {p['speed_rpm'][i]:g} is more than twice synchronous speed "
+               lambda i: f"speed_rpm = {r['speed_rpm'][i]:g} is more than twice synchronous speed "
                          f"({ns[i]:g} rpm): allowed below {2 * ns[i]:g} rpm; re-read the tachometer")
     errors.add(bad_p, "power_kw",
-               lambda i: f"power_kw = {p['power_kw'][i]:g} is more than five times the rated input "
-                         f"({p_out[i] / eta[i] / 1000:.3g} kW)")
-    p["v_mean"], p["v_count"], p["i_mean"], p["i_count"] = v_mean, v_count, i_mean, i_count
-    p["on_drive"] = on_drive
-    return p, errors, n
+               lambda i: f"power_kw = {r['power_kw'][i]:g} is more than five times the rated input "
+                         f"({p_in_rated[i] / 1000:.3g} kW)")
+    r["v_mean"], r["i_mean"] = v_mean, i_mean
+    return r
 
 
 # --------------------------------------------------------------------------- circuit cache
@@ -309,20 +395,14 @@ _CACHE_LIMIT = 20000
 _cache: "OrderedDict[tuple, tuple]" = OrderedDict()
 _cache_lock = threading.Lock()
 _FIT_INPUTS = ("rated_kw", "rated_voltage_v", "rated_current_a", "rated_frequency_hz", "poles_used",
-               "rated_speed_rpm", "pf_used", "eta_used", "bd_ratio", "x1_share")
+               "rated_speed_rpm", "pf_used", "eta_used", "bd_ratio", "x1_share", "fw_share")
 
 
 def _fit_for_rows(p: _Parsed) -> ckt.Circuit:
-    """One fitted circuit per row, fitting each distinct nameplate once (and caching it)."""
+    """One fitted circuit per distinct nameplate, from the cache where it is there."""
     mat = np.column_stack([np.asarray(p[k], dtype=float) for k in _FIT_INPUTS])
-    n = mat.shape[0]
-    bits = np.ascontiguousarray(mat).view(np.uint64)
-    weights = (np.arange(1, mat.shape[1] + 1, dtype=np.uint64) * np.uint64(0x9E3779B97F4A7C15)) | np.uint64(1)
-    with np.errstate(over="ignore"):
-        h = (bits * weights).sum(axis=1, dtype=np.uint64) ^ (bits[:, 0] >> np.uint64(7))
-    uniq_h, first, inverse = np.unique(h, return_index=True, return_inverse=True)
-    keys = [tuple(mat[i]) for i in first]
-    rows = [None] * len(keys)
+    keys = [tuple(row) for row in mat.tolist()]
+    rows: list = [None] * len(keys)
     missing = []
     with _cache_lock:
         for j, key in enumerate(keys):
@@ -333,30 +413,33 @@ def _fit_for_rows(p: _Parsed) -> ckt.Circuit:
                 _cache.move_to_end(key)
                 rows[j] = hit
     if missing:
-        sub = mat[[first[j] for j in missing]]
-        kw, v, i, f, poles, nr, pf, eta, bd, x1 = sub.T
-        fixed = np.full(len(missing), typical.FIXED_LOSS_SHARE)
-        fit = ckt.fit_circuit(kw * KILOWATT_W, v, i, f, poles, nr, pf, eta, bd, x1, fixed,
-                              typical.friction_windage_share_of_fixed(poles))
+        kw, v, i, f, poles, nr, pf, eta, bd, x1, fw = mat[missing].T
+        fit = ckt.fit_circuit(kw * KILOWATT_W, v, i, f, poles, nr, pf, eta, bd, x1,
+                              np.full(len(missing), typical.FIXED_LOSS_SHARE), fw)
         with _cache_lock:
             for k, j in enumerate(missing):
                 rows[j] = tuple(np.asarray(a)[k] for a in fit)
                 _cache[keys[j]] = rows[j]
                 if len(_cache) > _CACHE_LIMIT:
                     _cache.popitem(last=False)
-    table = ckt.Circuit(*(np.array(col) for col in zip(*rows)))
-    return table.take(inverse.reshape(n))
+    if not rows:
+        return ckt.Circuit(*(np.empty(0) for _ in ckt.Circuit._fields))
+    return ckt.Circuit(*(np.array(col) for col in zip(*rows)))
 
 
 # --------------------------------------------------------------------------- interpretation
 def _empty_results(n: int) -> dict:
     out = {}
     for col in C.RESULT_COLUMNS:
-        if col in C.TEXT_RESULT_COLUMNS:
-            out[col] = np.full(n, "", dtype=object)
-        else:
-            out[col] = np.full(n, np.nan)
+        out[col] = np.full(n, "", dtype=object) if col in C.TEXT_RESULT_COLUMNS else np.full(n, np.nan)
     return out
+
+
+def _column_length(cols: Mapping[str, Any]) -> int:
+    lengths = {len(v) for v in cols.values() if np.ndim(v) > 0}
+    if len(lengths) > 1:
+        raise ValueError("columns differ in length")
+    return lengths.pop() if lengths else 1
 
 
 def interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None = None) -> dict:
@@ -378,32 +461,50 @@ def interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None = N
         ``error_field`` and no results.
     """
     th = thresholds or Thresholds()
-    p, errors, n = _parse(cols)
+    n = _column_length(cols)
+    first, inverse = _group_nameplates(cols, n)
+    plate_cols = {k: _column(cols, k, n)[first] for k in C.NAMEPLATE_FIELDS if cols.get(k) is not None}
+    plates, plate_errors = _parse_nameplates(plate_cols, len(first))
+    _derive_nameplates(plates, plate_errors.ok)
+
+    errors = plate_errors.take(inverse)
+    per_row = ("tag", "rated_voltage_v", "rated_current_a", "rated_frequency_hz", "supply", "poles_used",
+               "rated_kw", "eta_used")
+    plate_rows = _Parsed({k: plates[k][inverse] for k in per_row})
+    readings = _parse_readings(cols, n, plate_rows, errors)
+
     out = _empty_results(n)
     out["engine_version"][:] = C.ENGINE_VERSION
-    ok = errors.ok
-    idx = np.flatnonzero(ok)
     flags_per_row = np.empty(n, dtype=object)
     findings_per_row = np.empty(n, dtype=object)
-    flags_per_row[:] = [()] * n
-    findings_per_row[:] = [[] for _ in range(n)] if n < 1000 else [[]] * n
+    empty_flags, empty_findings = (), []
+    flags_per_row.fill(empty_flags)
+    findings_per_row.fill(empty_findings)
+    ok = errors.ok
+    idx = np.flatnonzero(ok)
     if idx.size:
-        sub = _Parsed({k: (np.asarray(v)[idx] if np.ndim(v) else v) for k, v in p.items()})
-        res, codes, finds, inverse = _interpret_valid(sub, th)
+        # valid rows only ever point at valid nameplates; map them into the fitted subset
+        position = np.full(len(first), -1)
+        position[plates["_valid_index"]] = np.arange(plates["_valid_index"].size)
+        fitted = position[inverse[idx]]
+        valid_readings = _Parsed({k: v[idx] for k, v in readings.items()})
+        res, mask = _interpret_chunked(plates, fitted, valid_readings, th)
+        combo, combinations = pd.factorize(mask)
+        codes, finds = describe(combinations, th)
         for col, values in res.items():
             out[col][idx] = values
         flag_text = np.array([";".join(c) for c in codes], dtype=object)
         find_text = np.array([" | ".join(f"{d['flag']}: {d['text']}" + (f" Caution: {d['caution']}"
                                                                         if d["caution"] else "")
                                          for d in fl) for fl in finds], dtype=object)
-        out["flags"][idx] = flag_text[inverse]
-        out["findings"][idx] = find_text[inverse]
+        out["flags"][idx] = flag_text[combo]
+        out["findings"][idx] = find_text[combo]
         codes_arr = np.empty(len(codes), dtype=object)
         codes_arr[:] = codes
         finds_arr = np.empty(len(finds), dtype=object)
         finds_arr[:] = finds
-        flags_per_row[idx] = codes_arr[inverse]
-        findings_per_row[idx] = finds_arr[inverse]
+        flags_per_row[idx] = codes_arr[combo]
+        findings_per_row[idx] = finds_arr[combo]
     out["error"] = errors.message
     out["error_field"] = errors.field
     out["_flags"] = flags_per_row
@@ -411,177 +512,183 @@ def interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None = N
     return out
 
 
-def _interpret_valid(p: _Parsed, th: Thresholds):
-    n = len(p["tag"])
-    circuit = _attach_fit_inputs(p)
-    poles = p["poles_used"]
-    f, f_r = p["frequency_hz"], p["rated_frequency_hz"]
-    v_r, i_r = p["rated_voltage_v"], p["rated_current_a"]
-    n_meas, n_r = p["speed_rpm"], p["rated_speed_rpm"]
-    on_drive = p["on_drive"]
-    p_rated_w = p["rated_kw"] * KILOWATT_W
+#: Rows per chunk: arrays of this size stay in cache, and chunks run on two threads
+#: (numpy releases the GIL in its loops).
+CHUNK_ROWS = 32768
+_pool = None
+_pool_lock = threading.Lock()
+
+
+def _executor():
+    global _pool
+    with _pool_lock:
+        if _pool is None:
+            from concurrent.futures import ThreadPoolExecutor
+            _pool = ThreadPoolExecutor(max_workers=max(1, min(4, os.cpu_count() or 1)),
+                                       thread_name_prefix="slipwise-engine")
+        return _pool
+
+
+def _interpret_chunked(plates: _Parsed, fitted: np.ndarray, r: _Parsed, th: Thresholds):
+    n = fitted.size
+    if n <= CHUNK_ROWS:
+        return _interpret_valid(plates, fitted, r, th)
+    bounds = [(a, min(a + CHUNK_ROWS, n)) for a in range(0, n, CHUNK_ROWS)]
+    jobs = [_executor().submit(_interpret_valid, plates, fitted[a:b], _Parsed({k: v[a:b] for k, v in r.items()}), th)
+            for a, b in bounds]
+    parts = [job.result() for job in jobs]
+    res = {k: np.concatenate([part[0][k] for part in parts]) for k in parts[0][0]}
+    return res, np.concatenate([part[1] for part in parts])
+
+
+_ZONE_TEXT = np.array(["", "A", "B", "outside", "drive"], dtype=object)
+_SIDE_TEXT = np.array(["", "stable", "unstable"], dtype=object)
+
+
+def _interpret_valid(plates: _Parsed, fitted: np.ndarray, r: _Parsed, th: Thresholds):
+    """Physics on valid rows; ``fitted`` maps each row to its fitted nameplate."""
+    sub = plates["_valid"]
+    pl = lambda name: sub[name][fitted]  # noqa: E731
+    circuit = plates["_circuit"].take(fitted)
+    budgets = tuple(efficiency.LossBudget(*(part[fitted] for part in b)) for b in plates["_budgets"])
+    i0_r = plates["_i0_rated"][fitted]
+    poles = pl("poles_used")
+    f, f_r = r["frequency_hz"], pl("rated_frequency_hz")
+    v_r, i_r = pl("rated_voltage_v"), pl("rated_current_a")
+    n_meas, n_r = r["speed_rpm"], pl("rated_speed_rpm")
+    on_drive = pl("is_drive")
+    rated_kw = pl("rated_kw")
+    p_rated_w = rated_kw * KILOWATT_W
     ns = speed.synchronous_speed_rpm(f, poles)
-    ns_r = p["sync_rated_rpm"]
+    ns_r = pl("sync_rated_rpm")
     s = speed.slip_pu(n_meas, ns)
     slip_rpm = speed.slip_rpm(n_meas, ns)
-    s_r = p["rated_slip"]
+    s_r = pl("rated_slip")
     above = s <= 0.0
+    s_run = np.where(above, np.nan, s)
     # voltage: measured, or on a drive without a reading the V/f the drive applies
     v_expected_drive = v_r * np.minimum(f / f_r, 1.0)
-    v = np.where(np.isnan(p["v_mean"]), v_expected_drive, p["v_mean"])
+    v = np.where(np.isnan(r["v_mean"]), v_expected_drive, r["v_mean"])
     flux = (v / f) / (v_r / f_r)
     speed_ratio = n_meas / n_r
-    i_meas = p["i_mean"]
-
-    # --- load, three methods ------------------------------------------------------
-    slip_equiv = np.where(on_drive, slip_rpm, s * ns_r)
-    rated_slip_rpm = s_r * ns_r
-    flux_slip = np.where(on_drive, flux, v / v_r)
-    torque_slip, out_slip = load.slip_method(slip_equiv, rated_slip_rpm, flux_slip, speed_ratio, p["rated_kw"],
-                                             p["tachometer_resolution_rpm"], p["voltage_accuracy_pct"],
-                                             p["minutes_running"], on_drive)
-    i0 = ckt.no_load_current_a(circuit, v, f)
-    i0_r = ckt.no_load_current_a(circuit, v_r, f_r)
-    out_current = load.current_method(i_meas, i_r, i0, i0_r, flux, speed_ratio, p["current_accuracy_pct"])
-
-    budget = efficiency.rated_loss_budget(p_rated_w, p["eta_used"], s_r, typical.FIXED_LOSS_SHARE,
-                                          typical.friction_windage_share_of_fixed(poles))
     freq_ratio = f / f_r
-    core_now = budget.core_w * flux ** 2 * freq_ratio
-    fw_now = budget.friction_windage_w * speed_ratio ** 2
+    i_meas = r["i_mean"]
     current_ratio = i_meas / i_r
-    stator_now = budget.stator_w * current_ratio ** 2
-    pk = p["power_kw"] * KILOWATT_W
-    measured_v = ~np.isnan(p["v_mean"])
-    from_vipf = load.input_power_w(p["v_mean"], i_meas, p["power_factor"])
-    p_in = np.where(np.isnan(pk), from_vipf, pk)
+
+    # --- load, three methods ------------------------------------------------------------
+    slip_equiv = np.where(on_drive, slip_rpm, s * ns_r)
+    _, out_slip = load.slip_method(slip_equiv, s_r * ns_r, np.where(on_drive, flux, v / v_r), speed_ratio,
+                                   rated_kw, r["tachometer_resolution_rpm"], r["voltage_accuracy_pct"],
+                                   r["minutes_running"], on_drive)
+    i0 = i0_r * flux          # magnetising current ~ flux (saturation neglected; in the band)
+    out_current = load.current_method(i_meas, i_r, i0, i0_r, flux, speed_ratio, r["current_accuracy_pct"])
+    central = budgets[0]
+    core_now = central.core_w * flux ** 2 * freq_ratio
+    fw_now = central.friction_windage_w * speed_ratio ** 2
+    stator_now = central.stator_w * current_ratio ** 2
+    pk = r["power_kw"] * KILOWATT_W
+    p_in = np.where(np.isnan(pk), load.input_power_w(r["v_mean"], i_meas, r["power_factor"]), pk)
     with np.errstate(divide="ignore", invalid="ignore"):
-        acc_vipf = 100.0 * np.sqrt((p["voltage_accuracy_pct"] / 100) ** 2 + (p["current_accuracy_pct"] / 100) ** 2
-                                   + (load.POWER_FACTOR_ACCURACY / p["power_factor"]) ** 2)
-    p_acc = np.where(np.isnan(pk), acc_vipf, p["power_accuracy_pct"])
+        acc_vipf = 100.0 * np.sqrt((r["voltage_accuracy_pct"] / 100) ** 2 + (r["current_accuracy_pct"] / 100) ** 2
+                                   + (load.POWER_FACTOR_ACCURACY / r["power_factor"]) ** 2)
     share = typical.FIXED_LOSS_SHARE
     out_power = load.input_power_method(
-        p_in, p_acc, core_now, fw_now, stator_now, s, p_rated_w,
-        fixed_loss_band=(typical.FIXED_LOSS_SHARE_LOW / share, typical.FIXED_LOSS_SHARE_HIGH / share))
-    del measured_v
+        p_in, np.where(np.isnan(pk), acc_vipf, r["power_accuracy_pct"]), core_now, fw_now, stator_now, s,
+        p_rated_w, fixed_loss_band=(typical.FIXED_LOSS_SHARE_LOW / share, typical.FIXED_LOSS_SHARE_HIGH / share))
 
-    nan_if_above = lambda e: load.Estimate(*(np.where(above, np.nan, a) for a in e))  # noqa: E731
-    methods = [nan_if_above(out_slip), nan_if_above(out_current), nan_if_above(out_power)]
-    scaled = [load.Estimate(e.value, e.value - (e.value - e.low) * th.inconsistency_factor,
-                            e.value + (e.high - e.value) * th.inconsistency_factor) for e in methods]
-    fused, _, _ = load.fuse(methods)
-    _, consistent, outlier = load.fuse(scaled)
+    methods = [load.Estimate(*(np.where(above, np.nan, a) for a in e)) for e in (out_slip, out_current, out_power)]
+    fused, consistent, outlier = load.fuse(methods)
+    if th.inconsistency_factor != 1.0:
+        k = th.inconsistency_factor
+        scaled = [load.Estimate(e.value, e.value - (e.value - e.low) * k, e.value + (e.high - e.value) * k)
+                  for e in methods]
+        _, consistent, outlier = load.fuse(scaled)
     load_pu = fused.value
     torque_pu = load_pu / speed_ratio
-    torque_low = fused.low / speed_ratio
-    torque_high = fused.high / speed_ratio
+    at_sync = above & (n_meas - ns <= r["tachometer_resolution_rpm"])
 
-    # --- circuit at the operating point --------------------------------------------
+    # --- circuit at the operating point, breakdown, stability -------------------------------
     with np.errstate(invalid="ignore", divide="ignore"):
-        op = ckt.solve(circuit, v, f, np.where(above, np.nan, s))
+        op = ckt.solve(circuit, v, f, s_run)
         t_em_max, s_max = ckt.breakdown(circuit, v, f)
-        omega_r = n_r * RPM_TO_RAD_S
-        t_rated = p_rated_w / omega_r
+        t_rated = p_rated_w / (n_r * RPM_TO_RAD_S)
         t_fw = fw_now / np.maximum(n_meas * RPM_TO_RAD_S, 1e-9)
         bd_pct = 100.0 * (t_em_max - t_fw) / t_rated
         margin = torque_speed.breakdown_margin(bd_pct, np.maximum(100.0 * torque_pu, 1.0))
-        # stability: motor slope by central difference on the circuit curve
-        ds = np.maximum(1e-4, 0.02 * np.abs(s))
-        t_minus = ckt.solve(circuit, v, f, s - ds).torque_em_nm
-        t_plus = ckt.solve(circuit, v, f, s + ds).torque_em_nm
-        motor_slope = (t_minus - t_plus) / (2.0 * ds * ns)      # dT/dn [N m per rpm]
-        load_slope = torque_speed.load_torque_slope(p["driven_load"], n_meas, torque_pu * t_rated)
-        stable = torque_speed.is_stable(motor_slope, load_slope) & (s < s_max)
-        side = np.where(above | np.isnan(load_pu), "", np.where(stable, "stable", "unstable"))
-        lrt_pct = np.where(np.isnan(p["locked_rotor_torque_pct"]),
-                           typical.lookup(typical.LOCKED_ROTOR_TORQUE_PCT, p["design"]), p["locked_rotor_torque_pct"])
-        lrt_now = lrt_pct * (v / v_r) ** 2
-        need = typical.lookup(typical.BREAKAWAY_TORQUE_PCT, p["driven_load"]) / 100.0 * \
-            np.maximum(100.0 * torque_pu, 10.0)
-        starting = np.where(on_drive, np.nan, lrt_now / need)
+        # motor slope from the Kloss form through the circuit's breakdown point (documented
+        # simplification): dT/ds = 2 Tk (sk/s^2 - 1/sk) / (s/sk + sk/s)^2, dn = -ns ds
+        x = s_run / s_max + s_max / s_run
+        dt_ds = 2.0 * bd_pct / 100.0 * t_rated * (s_max / s_run ** 2 - 1.0 / s_max) / x ** 2
+        motor_slope = -dt_ds / ns
+        t_op = torque_pu * t_rated
+        load_slope = np.where(pl("is_variable_torque"), 2.0 * t_op / n_meas,
+                              np.where(pl("is_constant_power"), -t_op / n_meas, 0.0))
+        stable = torque_speed.is_stable(motor_slope, load_slope) & (s_run < s_max)
+        has_point = ~above & ~np.isnan(load_pu)
+        unstable = has_point & ~stable
+        # two methods that disagree where the slip says "past breakdown" and the current does
+        # not: the speed reading is the suspect (a pulley or driven shaft read)
+        speed_suspect = (outlier == -2) & (s_run > s_max) & (methods[1].value < 1.2)
+        outlier = np.where(speed_suspect, 0, outlier)
+        lrt_now = pl("lrt_pct") * (v / v_r) ** 2
+        need = pl("breakaway_share") * np.maximum(100.0 * torque_pu, 10.0)
+        starting = np.where(on_drive | above, np.nan, lrt_now / need)
 
-    # --- efficiency -------------------------------------------------------------------
-    budgets = tuple(efficiency.rated_loss_budget(p_rated_w, p["eta_used"], s_r, share_k,
-                                                 typical.friction_windage_share_of_fixed(poles))
-                    for share_k in (typical.FIXED_LOSS_SHARE, typical.FIXED_LOSS_SHARE_LOW,
-                                    typical.FIXED_LOSS_SHARE_HIGH))
+    # --- efficiency --------------------------------------------------------------------------
     eta, eta_lo, eta_hi = efficiency.efficiency_band(
         budgets, load_pu * p_rated_w, fused.low * p_rated_w, fused.high * p_rated_w, flux, freq_ratio,
-        speed_ratio, current_ratio, p["current_accuracy_pct"], s)
-    eff_class = efficiency_class.efficiency_class(p["rated_kw"], poles, f_r, p["rated_efficiency_pct"])
+        speed_ratio, current_ratio, r["current_accuracy_pct"], s)
 
-    # --- supply ---------------------------------------------------------------------------
-    vu = supply.max_deviation_unbalance_pct(p["voltage_l12_v"], p["voltage_l23_v"], p["voltage_l31_v"])
-    vuf = supply.voltage_unbalance_factor_pct(p["voltage_l12_v"], p["voltage_l23_v"], p["voltage_l31_v"])
-    iu = supply.max_deviation_unbalance_pct(p["current_l1_a"], p["current_l2_a"], p["current_l3_a"])
+    # --- supply --------------------------------------------------------------------------------
+    vu = supply.max_deviation_unbalance_pct(r["voltage_l12_v"], r["voltage_l23_v"], r["voltage_l31_v"])
+    vuf = supply.voltage_unbalance_factor_pct(r["voltage_l12_v"], r["voltage_l23_v"], r["voltage_l31_v"])
+    iu = supply.max_deviation_unbalance_pct(r["current_l1_a"], r["current_l2_a"], r["current_l3_a"])
     derate = supply.nema_derating_factor(vu)
-    v_dev = supply.deviation_pct(p["v_mean"], np.where(on_drive, v_expected_drive, v_r))
+    v_dev = supply.deviation_pct(r["v_mean"], np.where(on_drive, v_expected_drive, v_r))
     f_dev = np.where(on_drive, np.nan, supply.deviation_pct(f, f_r))
-    zone = np.where(on_drive, "drive", supply.iec_zone(v_dev, f_dev))
-    nema_design = np.isin(p["design"], ("A", "B", "C", "D"))
-    out_of_tol = ~on_drive & np.where(nema_design, ~supply.within_nema_tolerance(v_dev, f_dev), zone != "A")
+    zone_code = supply.iec_zone_code(v_dev, f_dev)
+    zone_code = np.where(on_drive, 4, zone_code)
+    out_of_tol = ~on_drive & np.where(pl("is_nema"), ~supply.within_nema_tolerance(v_dev, f_dev), zone_code != 1)
 
-    # --- flags ------------------------------------------------------------------------------
+    # --- flags -----------------------------------------------------------------------------------
     basis = np.where(on_drive, torque_pu, load_pu) * 100.0
+    # on a drive a fan or pump turns down by design: judge underload on the torque it would
+    # need at rated speed by its square law (common practice)
+    under_basis = np.where(on_drive & pl("is_variable_torque"), basis * (n_r / n_meas) ** 2, basis)
     with np.errstate(invalid="ignore"):
         flag_arrays = {
             "speed_above_synchronous": above,
             "overloaded": basis > th.overloaded_pct,
-            "over_service_factor": basis > 100.0 * p["service_factor"],
-            "near_breakdown": ~above & ((margin < th.near_breakdown_margin) | (side == "unstable")),
-            "underloaded": basis < th.underloaded_pct,
+            "over_service_factor": basis > 100.0 * pl("service_factor"),
+            "near_breakdown": ~above & ((margin < th.near_breakdown_margin) | unstable),
+            "underloaded": under_basis < th.underloaded_pct,
             "supply_out_of_tolerance": out_of_tol,
             "voltage_unbalance": vu > th.voltage_unbalance_pct,
             "current_unbalance": iu > th.current_unbalance_pct,
             "readings_inconsistent": ~above & ~consistent,
-            "starting_torque_low": ~above & np.isin(p["driven_load"], ("constant_torque", "high_breakaway"))
-                                   & (starting < th.starting_margin),
+            "starting_torque_low": pl("needs_breakaway") & (starting < th.starting_margin),
         }
-    assert tuple(flag_arrays) == FLAG_ORDER or set(flag_arrays) == set(FLAG_ORDER)
-    codes, finds, inverse = describe(flag_arrays, np.where(consistent, -1, outlier), on_drive, th)
+    mask = combination_mask(flag_arrays, np.where(consistent, -1, outlier), on_drive, at_sync)
 
     res = {
-        "poles": poles,
-        "sync_speed_rpm": ns,
-        "slip_pct": 100.0 * s,
-        "slip_rpm": slip_rpm,
-        "load_pct": 100.0 * load_pu,
-        "load_low_pct": 100.0 * fused.low,
-        "load_high_pct": 100.0 * fused.high,
-        "load_slip_pct": 100.0 * methods[0].value,
-        "load_current_pct": 100.0 * methods[1].value,
+        "poles": poles, "sync_speed_rpm": ns, "slip_pct": 100.0 * s, "slip_rpm": slip_rpm,
+        "load_pct": 100.0 * load_pu, "load_low_pct": 100.0 * fused.low, "load_high_pct": 100.0 * fused.high,
+        "load_slip_pct": 100.0 * methods[0].value, "load_current_pct": 100.0 * methods[1].value,
         "load_power_pct": 100.0 * methods[2].value,
-        "output_kw": load_pu * p["rated_kw"],
-        "torque_pct": 100.0 * torque_pu,
-        "torque_low_pct": 100.0 * torque_low,
-        "torque_high_pct": 100.0 * torque_high,
-        "efficiency_pct": 100.0 * eta,
-        "efficiency_low_pct": 100.0 * eta_lo,
-        "efficiency_high_pct": 100.0 * eta_hi,
-        "efficiency_class": eff_class,
-        "voltage_unbalance_pct": vu,
-        "voltage_unbalance_factor_pct": vuf,
-        "current_unbalance_pct": iu,
-        "derating_factor": derate,
-        "voltage_deviation_pct": v_dev,
-        "frequency_deviation_pct": f_dev,
-        "supply_zone": zone,
+        "output_kw": load_pu * rated_kw,
+        "torque_pct": 100.0 * torque_pu, "torque_low_pct": 100.0 * fused.low / speed_ratio,
+        "torque_high_pct": 100.0 * fused.high / speed_ratio,
+        "efficiency_pct": 100.0 * eta, "efficiency_low_pct": 100.0 * eta_lo, "efficiency_high_pct": 100.0 * eta_hi,
+        "efficiency_class": pl("efficiency_class"),
+        "voltage_unbalance_pct": vu, "voltage_unbalance_factor_pct": vuf, "current_unbalance_pct": iu,
+        "derating_factor": derate, "voltage_deviation_pct": v_dev, "frequency_deviation_pct": f_dev,
+        "supply_zone": _ZONE_TEXT[zone_code],
         "breakdown_margin": np.where(above, np.nan, margin),
-        "predicted_current_a": op.current_a,
-        "predicted_power_factor": op.power_factor,
-        "breakdown_torque_pct": bd_pct,
-        "starting_margin": np.where(above, np.nan, starting),
-        "operating_side": side,
+        "predicted_current_a": op.current_a, "predicted_power_factor": op.power_factor,
+        "breakdown_torque_now_pct": bd_pct, "starting_margin": starting,
+        "operating_side": _SIDE_TEXT[np.where(has_point, np.where(stable, 1, 2), 0)],
     }
-    return res, codes, finds, inverse
-
-
-def _attach_fit_inputs(p: _Parsed) -> ckt.Circuit:
-    bd = np.where(np.isnan(p["breakdown_torque_pct"]),
-                  typical.lookup(typical.BREAKDOWN_TORQUE_PCT, p["design"]), p["breakdown_torque_pct"])
-    p["bd_ratio"] = bd / 100.0
-    p["x1_share"] = typical.lookup(typical.LEAKAGE_STATOR_SHARE, p["design"])
-    return _fit_for_rows(p)
+    return res, mask
 
 
 # --------------------------------------------------------------------------- records
@@ -637,6 +744,15 @@ def interpret_one(record: Mapping[str, Any], thresholds: Thresholds | None = Non
     return _row(out, 0)
 
 
+def _single_plate(record: Mapping[str, Any]) -> _Parsed:
+    cols = _records_to_columns([record])
+    plates, errors = _parse_nameplates({k: _column(cols, k, 1) for k in C.NAMEPLATE_FIELDS if k in cols}, 1)
+    if not errors.ok[0]:
+        raise InputError(errors.field[0], errors.message[0])
+    _derive_nameplates(plates, errors.ok)
+    return plates
+
+
 def torque_speed_curve(record: Mapping[str, Any], thresholds: Thresholds | None = None, points: int = 200) -> dict:
     """Arrays for the torque-speed picture of one reading.
 
@@ -649,45 +765,51 @@ def torque_speed_curve(record: Mapping[str, Any], thresholds: Thresholds | None 
         the operating point); floats ``operating_speed_rpm``,
         ``operating_torque_nm`` (None without an operating point),
         ``breakdown_speed_rpm``, ``breakdown_torque_nm`` (at measured voltage),
-        ``rated_torque_nm``, ``sync_speed_rpm``; and ``driven_load``.
+        ``rated_torque_nm``, ``sync_speed_rpm``, ``measured_voltage_v``,
+        ``rated_voltage_v``; and ``driven_load``.
     """
     result = interpret_one(record, thresholds)
-    p, errors, _ = _parse(_records_to_columns([record]))
-    circuit = _attach_fit_inputs(p)
-    f = p["frequency_hz"]
-    v_r = p["rated_voltage_v"]
-    v = np.where(np.isnan(p["v_mean"]), v_r * np.minimum(f / p["rated_frequency_hz"], 1.0), p["v_mean"])
-    ns = float(speed.synchronous_speed_rpm(f, p["poles_used"])[0])
-    slip = np.concatenate([np.geomspace(1e-4, 1.0, points - 1), [0.0]])[::-1]
-    slip = np.sort(slip)[::-1]
+    plates = _single_plate(record)
+    circuit = plates["_circuit"]
+    f = float(record.get("frequency_hz"))
+    f_r = float(plates["rated_frequency_hz"][0])
+    v_r = float(plates["rated_voltage_v"][0])
+    volts = [_float_or_nan(record.get(k)) for k in C.VOLTAGE_FIELDS]
+    volts = [x for x in volts if not math.isnan(x)]
+    v = sum(volts) / len(volts) if volts else v_r * min(f / f_r, 1.0)
+    ns = float(result["sync_speed_rpm"])
+    slip = np.concatenate([np.geomspace(1.0, 1e-4, points - 1), [0.0]])
     n = ns * (1.0 - slip)
-    fw = circuit.friction_windage_w[0]
-    n_r = float(p["rated_speed_rpm"][0])
-    omega = np.maximum(n * RPM_TO_RAD_S, 1e-6)
-    fw_torque = fw * (n / n_r) ** 2 / omega
+    n_r = float(plates["rated_speed_rpm"][0])
+    fw = float(circuit.friction_windage_w[0])
+    fw_torque = fw * (n / n_r) ** 2 / np.maximum(n * RPM_TO_RAD_S, 1e-6)
+    many = circuit.take(np.zeros(slip.size, dtype=int))
 
-    def shaft(volts):
-        t = ckt.solve(circuit.take(np.zeros(slip.size, dtype=int)), volts, f[0], slip).torque_em_nm
-        return np.maximum(t - fw_torque, 0.0)
+    def shaft(volt):
+        return np.maximum(ckt.solve(many, volt, f, slip).torque_em_nm - fw_torque, 0.0)
 
-    t_meas = shaft(float(v[0]))
-    t_rated_v = shaft(float(v_r[0]))
-    t_rated = float(p["rated_kw"][0]) * KILOWATT_W / (n_r * RPM_TO_RAD_S)
-    t_max, s_max = ckt.breakdown(circuit, v, f)
-    bd_speed = ns * (1.0 - float(s_max[0]))
-    bd_torque = (result["breakdown_torque_pct"] or 0.0) / 100.0 * t_rated
-    op_speed = float(p["speed_rpm"][0])
+    t_rated = float(plates["rated_kw"][0]) * KILOWATT_W / (n_r * RPM_TO_RAD_S)
+    _, s_max = ckt.breakdown(circuit, v, f)
+    law = str(plates["driven_load"][0])
     op_torque = None if result["torque_pct"] is None else result["torque_pct"] / 100.0 * t_rated
-    law = str(p["driven_load"][0])
+    op_speed = float(record.get("speed_rpm"))
     if op_torque is not None:
-        lrt_need = typical.BREAKAWAY_TORQUE_PCT[law] / 100.0 * max(op_torque, 0.1 * t_rated)
-        load_t = torque_speed.load_torque(n, law, op_speed, op_torque, ns, breakaway_torque=lrt_need)
+        need = typical.BREAKAWAY_TORQUE_PCT[law] / 100.0 * max(op_torque, 0.1 * t_rated)
+        load_t = torque_speed.load_torque(n, law, op_speed, op_torque, ns, breakaway_torque=need)
     else:
         load_t = np.full(n.shape, np.nan)
     return {
-        "speed_rpm": n, "torque_measured_v_nm": t_meas, "torque_rated_v_nm": t_rated_v, "load_torque_nm": load_t,
-        "operating_speed_rpm": op_speed if op_torque is not None else None,
-        "operating_torque_nm": op_torque, "breakdown_speed_rpm": bd_speed, "breakdown_torque_nm": bd_torque,
+        "speed_rpm": n, "torque_measured_v_nm": shaft(v), "torque_rated_v_nm": shaft(v_r), "load_torque_nm": load_t,
+        "operating_speed_rpm": op_speed if op_torque is not None else None, "operating_torque_nm": op_torque,
+        "breakdown_speed_rpm": ns * (1.0 - float(s_max[0])),
+        "breakdown_torque_nm": (result["breakdown_torque_now_pct"] or 0.0) / 100.0 * t_rated,
         "rated_torque_nm": t_rated, "sync_speed_rpm": ns, "driven_load": law,
-        "measured_voltage_v": float(v[0]), "rated_voltage_v": float(v_r[0]),
+        "measured_voltage_v": v, "rated_voltage_v": v_r,
     }
+
+
+def _float_or_nan(value) -> float:
+    try:
+        return float(value)
+    except (TypeError, ValueError):
+        return math.nan

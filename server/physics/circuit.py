@@ -73,16 +73,19 @@ class _Trial(NamedTuple):
     xm_ohm: np.ndarray
     x1_ohm: np.ndarray
     x2_ohm: np.ndarray
+    rc_ohm: np.ndarray
     breakdown_em_nm: np.ndarray
     valid: np.ndarray
 
 
-def _trial(x_total, v_phase, i1, r1, rc, slip, x1_share, omega_sync):
-    """Closed-form R2, Xm for a trial total leakage, and the breakdown torque."""
+def _trial(x_total, v_phase, i1, r1, p_core, slip, x1_share, omega_sync):
+    """Closed-form Rc, R2, Xm for a trial total leakage, and the breakdown torque."""
     x1 = x1_share * x_total
     x2 = (1.0 - x1_share) * x_total
     e = v_phase - i1 * (r1 + 1j * x1)
     with np.errstate(divide="ignore", invalid="ignore"):
+        # the core branch dissipates the core loss at the air-gap voltage E
+        rc = np.where(p_core > 0, 3.0 * np.abs(e) ** 2 / np.where(p_core > 0, p_core, 1.0), np.inf)
         y = i1 / e
         g2 = y.real - np.where(np.isinf(rc), 0.0, 1.0 / rc)
         disc = 1.0 - 4.0 * g2 ** 2 * x2 ** 2
@@ -98,7 +101,7 @@ def _trial(x_total, v_phase, i1, r1, rc, slip, x1_share, omega_sync):
         zth = z1 * zm / (z1 + zm)
         tmax = 3.0 * np.abs(vth) ** 2 / (
             2.0 * omega_sync * (zth.real + np.sqrt(zth.real ** 2 + (zth.imag + x2) ** 2)))
-    return _Trial(r2, xm, x1, x2, tmax, valid)
+    return _Trial(r2, xm, x1, x2, rc, tmax, valid)
 
 
 def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequency_hz, poles,
@@ -183,9 +186,6 @@ def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequenc
     r1 = np.maximum(p_cu1, 0.0) / (3.0 * i_r ** 2)
     phi = np.arccos(np.clip(pf, 0.0, 1.0))
     i1 = i_r * (np.cos(phi) - 1j * np.sin(phi))
-    e_est = np.abs(v_phase - i1 * r1)
-    with np.errstate(divide="ignore"):
-        rc = np.where(p_core > 0, 3.0 * e_est ** 2 / np.where(p_core > 0, p_core, 1.0), np.inf)
 
     t_rated = p_out / omega_rated
     t_fw = p_fw / omega_rated
@@ -194,7 +194,7 @@ def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequenc
 
     # scan a log grid of total leakage for the first bracket of the target
     grid = np.geomspace(0.002, 3.0, 64)[:, None] * z_base[None, :]
-    t = _trial(grid, v_phase, i1, r1, rc, slip, x1_share, omega_sync)
+    t = _trial(grid, v_phase, i1, r1, p_core, slip, x1_share, omega_sync)
     resid = np.where(t.valid, t.breakdown_em_nm - target_em, np.nan)
     above = resid > 0
     below = resid <= 0
@@ -216,21 +216,21 @@ def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequenc
     if has_bracket.any():
         idx = np.flatnonzero(has_bracket)
 
-        def f(x, vp, i, r1_, rc_, s_, xs, ws, tgt):
-            tr = _trial(x, vp, i, r1_, rc_, s_, xs, ws)
+        def f(x, vp, i, r1_, pc_, s_, xs, ws, tgt):
+            tr = _trial(x, vp, i, r1_, pc_, s_, xs, ws)
             return tr.breakdown_em_nm - tgt
 
         res = elementwise.find_root(
             f, (lo[idx], hi[idx]),
-            args=(v_phase[idx], i1[idx], r1[idx], rc[idx], slip[idx], x1_share[idx], omega_sync[idx],
+            args=(v_phase[idx], i1[idx], r1[idx], p_core[idx], slip[idx], x1_share[idx], omega_sync[idx],
                   target_em[idx]),
             tolerances={"xrtol": 1e-10})
         x_total[idx] = res.x
 
-    fin = _trial(x_total, v_phase, i1, r1, rc, slip, x1_share, omega_sync)
+    fin = _trial(x_total, v_phase, i1, r1, p_core, slip, x1_share, omega_sync)
     achieved = (fin.breakdown_em_nm - t_fw) / t_rated
     fit_ok = valid_any & fin.valid & (np.abs(achieved / bd_ratio - 1.0) < 0.01)
-    return Circuit(r1, fin.x1_ohm, fin.r2_ohm, fin.x2_ohm, fin.xm_ohm, rc, p_fw, v_ll, f_r, poles, n_r,
+    return Circuit(r1, fin.x1_ohm, fin.r2_ohm, fin.x2_ohm, fin.xm_ohm, fin.rc_ohm, p_fw, v_ll, f_r, poles, n_r,
                    achieved, fit_ok)
 
 

@@ -138,25 +138,26 @@ def efficiency_band(budgets, output_w, output_low_w, output_high_w, flux_ratio, 
     Returns
     -------
     tuple of numeric
-        ``(efficiency, low, high)`` [pu]: the band is the extreme of every
-        corner of output band x fixed share x loss tolerance x meter accuracy.
+        ``(efficiency, low, high)`` [pu].
+
+    Notes
+    -----
+    The losses are linear in the fixed-loss share, so their extremes lie at
+    the ends of its band; the highest losses go with the meter reading low
+    (true current higher) and the nameplate's loss tolerance at its top, the
+    lowest the other way. Each is paired with both ends of the output band
+    and the band is the extreme efficiency of those pairs.
     """
-    central, *others = budgets
+    central = budgets[0]
     acc = np.asarray(current_accuracy_pct, dtype=float) / 100.0
     ir = np.asarray(current_ratio, dtype=float)
-    eta = efficiency_pu(output_w, operating_losses_w(central, flux_ratio, frequency_ratio, speed_ratio, ir,
-                                                     slip, output_w))
-    low = np.full_like(eta, np.inf)
-    high = np.full_like(eta, -np.inf)
-    for budget in (central, *others):
-        for k in LOSS_TOLERANCE:
-            scaled = LossBudget(*(part * k for part in budget))
-            for p in (output_low_w, output_high_w):
-                for ic in (ir * (1 - acc), ir * (1 + acc)):
-                    e = efficiency_pu(p, operating_losses_w(scaled, flux_ratio, frequency_ratio, speed_ratio,
-                                                            ic, slip, p))
-                    low = np.fmin(low, e)
-                    high = np.fmax(high, e)
-    low = np.where(np.isfinite(low), np.fmin(low, eta), np.nan)
-    high = np.where(np.isfinite(high), np.fmax(high, eta), np.nan)
+    args = (flux_ratio, frequency_ratio, speed_ratio)
+    eta = efficiency_pu(output_w, operating_losses_w(central, *args, ir, slip, output_w))
+    low, high = eta, eta
+    for p in (output_low_w, output_high_w):
+        lost = [operating_losses_w(b, *args, ir * k, slip, p) for b in budgets[1:] for k in (1 - acc, 1 + acc)]
+        hi_loss = LOSS_TOLERANCE[1] * np.fmax(np.fmax(lost[0], lost[1]), np.fmax(lost[2], lost[3]))
+        lo_loss = LOSS_TOLERANCE[0] * np.fmin(np.fmin(lost[0], lost[1]), np.fmin(lost[2], lost[3]))
+        low = np.fmin(low, efficiency_pu(p, hi_loss))
+        high = np.fmax(high, efficiency_pu(p, lo_loss))
     return eta, low, high

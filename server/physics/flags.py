@@ -111,13 +111,21 @@ _INCONSISTENT_TEXT = {
 }
 
 
-def finding_text(code: str, th: Thresholds, outlier: int = -2, on_drive: bool = False) -> tuple[str, str]:
+def finding_text(code: str, th: Thresholds, outlier: int = -2, on_drive: bool = False,
+                 at_synchronous: bool = False) -> tuple[str, str]:
     """Plain-language finding and its caution for one flag."""
     basis = "torque" if on_drive else "load"
+    above = ("Shaft speed equals synchronous speed within the tachometer's resolution: the motor runs "
+             "uncoupled or unloaded, so slip is too small to measure. No load estimate is given."
+             if at_synchronous else
+             "Shaft speed is above synchronous speed: the motor is generating (driven by its load) or the "
+             "tachometer was misread. No load estimate is given.")
+    under = (f"Torque projected to rated speed by the fan/pump law is below {th.underloaded_pct:g} % of rated "
+             "torque: the motor is oversized for this duty even at full speed." if on_drive else
+             f"Estimated load is below {th.underloaded_pct:g} % of rated: the motor is oversized for this "
+             "duty; efficiency and power factor are poor.")
     texts = {
-        "speed_above_synchronous": (
-            "Shaft speed is at or above synchronous speed: the motor is generating (driven by its load) or "
-            "the tachometer was misread. No load estimate is given.", CAUTION_MEASURE),
+        "speed_above_synchronous": (above, CAUTION_MEASURE),
         "overloaded": (
             f"Estimated {basis} is above {th.overloaded_pct:g} % of rated: the winding runs hotter than "
             "its rating; find the cause (process, mechanical drag, wrong impeller or pulley) before "
@@ -129,10 +137,7 @@ def finding_text(code: str, th: Thresholds, outlier: int = -2, on_drive: bool = 
             f"Breakdown torque is less than {th.near_breakdown_margin:g} times the operating torque (or the "
             "point is already past breakdown, on the unstable side): a voltage dip or load surge may stall "
             "the motor.", CAUTION_KEEP_RUNNING),
-        "underloaded": (
-            f"Estimated {basis} is below {th.underloaded_pct:g} % of rated: the motor is oversized for this "
-            "duty; efficiency and power factor are poor. Check the process was at its normal duty when read.",
-            ""),
+        "underloaded": (under + " Check the process was at its normal duty when read.", ""),
         "supply_out_of_tolerance": (
             "Supply voltage or frequency is outside the tolerance the motor is rated for (IEC 60034-1 zone A, "
             "or NEMA MG 1 +-10 % V, +-5 % f, 10 % combined).", CAUTION_ISOLATE),
@@ -153,46 +158,54 @@ def finding_text(code: str, th: Thresholds, outlier: int = -2, on_drive: bool = 
     return texts[code]
 
 
-def _mask(flag_arrays: dict, outlier, on_drive):
-    n = len(next(iter(flag_arrays.values())))
-    mask = np.zeros(n, dtype=np.int64)
-    for bit, code in enumerate(FLAG_ORDER):
-        mask |= np.asarray(flag_arrays[code], dtype=bool).astype(np.int64) << bit
-    mask |= (np.asarray(outlier, dtype=np.int64) + 2) << len(FLAG_ORDER)
-    mask |= np.asarray(on_drive, dtype=bool).astype(np.int64) << (len(FLAG_ORDER) + 3)
-    return mask
-
-
-def describe(flag_arrays: dict, outlier, on_drive, th: Thresholds):
-    """Flag codes and findings per row.
+def combination_mask(flag_arrays: dict, outlier, on_drive, at_synchronous=None) -> np.ndarray:
+    """One integer per row encoding its flags, the disagreeing method and the supply.
 
     Parameters
     ----------
     flag_arrays : dict of str -> array of bool
         One boolean array per code of :data:`FLAG_ORDER`.
     outlier : array of int
-        Method index that disagrees (see :func:`load.fuse`).
+        Method index that disagrees (see :func:`load.fuse`), -1 none, -2 ambiguous.
     on_drive : array of bool
+    at_synchronous : array of bool, optional
+        Speed equal to synchronous within the tachometer's resolution.
+    """
+    n = len(next(iter(flag_arrays.values())))
+    mask = np.zeros(n, dtype=np.int64)
+    for bit, code in enumerate(FLAG_ORDER):
+        mask |= np.asarray(flag_arrays[code], dtype=bool).astype(np.int64) << bit
+    mask |= (np.asarray(outlier, dtype=np.int64) + 2) << len(FLAG_ORDER)
+    mask |= np.asarray(on_drive, dtype=bool).astype(np.int64) << (len(FLAG_ORDER) + 3)
+    if at_synchronous is not None:
+        mask |= np.asarray(at_synchronous, dtype=bool).astype(np.int64) << (len(FLAG_ORDER) + 4)
+    return mask
+
+
+def describe(combinations, th: Thresholds):
+    """Flag codes and findings for each distinct combination mask.
+
+    Parameters
+    ----------
+    combinations : sequence of int
+        Distinct values of :func:`combination_mask`.
     th : Thresholds
 
     Returns
     -------
     codes : list of tuple of str
-        Per distinct combination.
+        Per combination.
     findings : list of list of dict
         ``{"flag", "text", "caution"}`` per combination.
-    inverse : numpy.ndarray of int
-        Row -> combination index.
     """
-    mask = _mask(flag_arrays, outlier, on_drive)
-    uniq, inverse = np.unique(mask, return_inverse=True)
     codes, findings = [], []
-    for m in uniq:
+    for m in combinations:
         m = int(m)
         row_codes = tuple(code for bit, code in enumerate(FLAG_ORDER) if m >> bit & 1)
         out = ((m >> len(FLAG_ORDER)) & 0b111) - 2
         drive = bool(m >> (len(FLAG_ORDER) + 3) & 1)
+        at_sync = bool(m >> (len(FLAG_ORDER) + 4) & 1)
         codes.append(row_codes)
-        findings.append([dict(zip(("flag", "text", "caution"), (c,) + finding_text(c, th, out, drive)))
+        findings.append([dict(zip(("flag", "text", "caution"), (c,) + finding_text(c, th, out, drive, at_sync)))
                          for c in row_codes])
-    return codes, findings, inverse
+    return codes, findings

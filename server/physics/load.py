@@ -18,6 +18,7 @@ References
 
 from __future__ import annotations
 
+import warnings
 from typing import NamedTuple
 
 import numpy as np
@@ -33,8 +34,9 @@ ROTOR_THERMAL_TIME_MIN = 30.0
 #: Nameplate slip tolerance, fraction of rated slip (IEC 60034-1 Table 21 / NEMA MG 1 12.46).
 SLIP_TOLERANCE = 0.20
 SLIP_TOLERANCE_BELOW_1KW = 0.30
-#: Model error of the current method beyond meter and no-load current uncertainty [pu of rated].
-CURRENT_MODEL_ERROR_PU = 0.05
+#: Model error of the current method beyond meter and no-load current uncertainty [pu of rated]:
+#: the quadrature model ignores the rotor leakage current and nameplate currents are rounded.
+CURRENT_MODEL_ERROR_PU = 0.08
 #: Uncertainty of the circuit's no-load current [fraction].
 NO_LOAD_CURRENT_TOLERANCE = 0.20
 #: Absolute accuracy of a power-factor reading [-] (common practice for clamp power meters).
@@ -177,7 +179,7 @@ def current_method(current_a, rated_current_a, no_load_current_a, rated_no_load_
     no-load (mostly magnetising) current is taken out in quadrature:
     torque ``~ flux * sqrt(I^2 - I_0^2) / sqrt(I_r^2 - I_0r^2)``, output =
     torque times speed ratio. The band adds the meter accuracy, a 20 %
-    uncertainty of the circuit's no-load current and a 5 % model error.
+    uncertainty of the circuit's no-load current and an 8 % model error.
     """
     i = np.asarray(current_a, dtype=float)
     i_r = np.asarray(rated_current_a, dtype=float)
@@ -280,8 +282,10 @@ def fuse(estimates):
     consistent : numpy.ndarray of bool
         False where two methods disagree by more than their bands allow.
     outlier : numpy.ndarray of int
-        Index of the method that disagrees with the others (-1: none, or
-        only two methods so the culprit is ambiguous; -2 ambiguous).
+        Index of the method that disagrees with the others: the one in most
+        disagreeing pairs, on a tie the one farthest from the median in its
+        own sigmas; -1 where all agree, -2 where only two methods disagree
+        (either may be the wrong one).
     """
     v = np.stack([np.asarray(e.value, dtype=float) for e in estimates])
     lo = np.stack([np.asarray(e.low, dtype=float) for e in estimates])
@@ -315,8 +319,14 @@ def fuse(estimates):
     consistent = ~pair.any(axis=(0, 1))
     n_ok = ok.sum(axis=0)
     votes = pair.sum(axis=1)                 # how many methods each one disagrees with
-    outlier = np.argmax(votes, axis=0)
     top = votes.max(axis=0)
     unique_top = (votes == top).sum(axis=0) == 1
-    outlier = np.where(consistent, -1, np.where((n_ok >= 3) & unique_top, outlier, -2))
+    # a tie among three or more: the one farthest from the median, in its own sigmas
+    with np.errstate(invalid="ignore", divide="ignore"), warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)     # all-NaN rows: no method available
+        median = np.nanmedian(np.where(ok, v, np.nan), axis=0) if m >= 3 else np.nanmean(v, axis=0)
+        distance = np.where(ok, np.abs(v - median) / sigma, -np.inf)
+    by_votes = np.argmax(votes, axis=0)
+    by_distance = np.argmax(distance, axis=0)
+    outlier = np.where(consistent, -1, np.where(n_ok >= 3, np.where(unique_top, by_votes, by_distance), -2))
     return fused, consistent, outlier

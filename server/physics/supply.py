@@ -157,13 +157,18 @@ def iec_zone(voltage_deviation_pct, frequency_deviation_pct):
     ``-5 <= df <= +3``, ``|dV| <= 10`` and ``|dV - df| <= 10``. The cut
     corners are where flux (V/f) is far from rated.
     """
+    return np.array(["", "A", "B", "outside"])[iec_zone_code(voltage_deviation_pct, frequency_deviation_pct)]
+
+
+def iec_zone_code(voltage_deviation_pct, frequency_deviation_pct):
+    """:func:`iec_zone` as a code: 0 unknown (NaN), 1 zone A, 2 zone B, 3 outside."""
     dv = np.asarray(voltage_deviation_pct, dtype=float)
     df = np.asarray(frequency_deviation_pct, dtype=float)
     eps = 1e-9
     in_a = (np.abs(df) <= 2 + eps) & (np.abs(dv) <= 5 + eps) & (np.abs(dv - df) <= 5 + eps)
     in_b = (df >= -5 - eps) & (df <= 3 + eps) & (np.abs(dv) <= 10 + eps) & (np.abs(dv - df) <= 10 + eps)
-    zone = np.where(in_a, "A", np.where(in_b, "B", "outside"))
-    return np.where(np.isnan(dv) | np.isnan(df), "", zone)
+    code = np.where(in_a, 1, np.where(in_b, 2, 3))
+    return np.where(np.isnan(dv) | np.isnan(df), 0, code)
 
 
 def within_nema_tolerance(voltage_deviation_pct, frequency_deviation_pct):

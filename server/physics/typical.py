@@ -71,10 +71,12 @@ BREAKDOWN_TORQUE_PCT = {"A": 260.0, "B": 240.0, "C": 210.0, "D": 280.0, "N": 270
 
 #: Typical locked-rotor torque by design [% of rated torque] (catalogue
 #: practice, from memory; NEMA MG 1 design D minimum is 275 %).
-LOCKED_ROTOR_TORQUE_PCT = {"A": 175.0, "B": 175.0, "C": 230.0, "D": 275.0, "N": 210.0, "H": 250.0}
+LOCKED_ROTOR_TORQUE_PCT = {"A": 200.0, "B": 200.0, "C": 250.0, "D": 275.0, "N": 220.0, "H": 260.0}
 
-#: Breakaway torque a driven machine needs to start [% of rated motor torque]
-#: when the motor is sized for it (common practice).
+#: Breakaway torque a driven machine needs to start, as % of its running
+#: torque (common practice: fans and centrifugal pumps 10-20 %, conveyors and
+#: positive-displacement machines about their running torque, loaded
+#: conveyors, crushers and mixers 150-200 %).
 BREAKAWAY_TORQUE_PCT = {"variable_torque": 15.0, "constant_torque": 100.0,
                         "constant_power": 100.0, "high_breakaway": 175.0}
 

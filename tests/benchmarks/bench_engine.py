@@ -1,0 +1,101 @@
+"""Engine batch benchmark: 1,000,000 readings over 1,000 nameplates.
+
+Prints the time to read the CSV with pandas, the time to interpret it (all
+circuit fits included, cold cache), their ratio, and the peak memory of the
+process. Goal on a 2-core machine: interpretation <= 1.0x the read time, peak
+memory <= 1.5 GB. Not a timed test: it prints figures.
+
+    .venv/bin/python tests/benchmarks/bench_engine.py [--rows 1000000] [--nameplates 1000]
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import resource
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
+
+from server import engine  # noqa: E402
+from server.cli_analyze import analyze_frame  # noqa: E402
+
+
+def make_frame(rows: int, nameplates: int, seed: int = 7) -> pd.DataFrame:
+    rng = np.random.default_rng(seed)
+    kw = np.round(np.exp(rng.uniform(np.log(0.75), np.log(250), nameplates)), 2)
+    hz = rng.choice([50.0, 60.0], nameplates)
+    poles = rng.choice([2, 4, 6], nameplates, p=[0.3, 0.5, 0.2])
+    ns = 120 * hz / poles
+    slip_r = rng.uniform(0.01, 0.045, nameplates)
+    n_r = np.round(ns * (1 - slip_r))
+    v_r = np.where(hz == 50, 400.0, 460.0)
+    eta = np.clip(np.round(95.5 - 6.0 * np.exp(-kw / 8.0) - rng.uniform(0, 2, nameplates), 1), 70, 97)
+    pf = np.clip(np.round(0.88 - 0.12 * np.exp(-kw / 6.0) - rng.uniform(0, 0.05, nameplates), 2), 0.6, 0.92)
+    i_r = np.round(kw * 1000 / (np.sqrt(3) * v_r * pf * eta / 100), 1)
+    plate = pd.DataFrame({
+        "tag": [f"M-{k:04d}" for k in range(nameplates)], "rated_power_kw": kw, "rated_voltage_v": v_r,
+        "rated_current_a": i_r, "rated_frequency_hz": hz, "rated_speed_rpm": n_r,
+        "rated_power_factor": pf, "rated_efficiency_pct": eta,
+        "supply": rng.choice(["mains", "drive"], nameplates, p=[0.85, 0.15]),
+        "driven_load": rng.choice(["variable_torque", "constant_torque"], nameplates),
+    })
+    which = rng.integers(0, nameplates, rows)
+    df = plate.iloc[which].reset_index(drop=True)
+    on_drive = df["supply"].to_numpy() == "drive"
+    f = np.where(on_drive, rng.uniform(30, 50, rows) * df["rated_frequency_hz"] / 50,
+                 df["rated_frequency_hz"] * rng.normal(1, 0.004, rows))
+    load = rng.uniform(0.2, 1.1, rows)
+    ns_row = 120 * f / poles[which]
+    s_r = 1 - df["rated_speed_rpm"] / (120 * df["rated_frequency_hz"] / poles[which])
+    speed = np.round(ns_row - load * s_r * 120 * df["rated_frequency_hz"] / poles[which], 0)
+    v = df["rated_voltage_v"] * np.where(on_drive, np.minimum(f / df["rated_frequency_hz"], 1), 1)
+    i_load = df["rated_current_a"] * np.sqrt(0.35 ** 2 + (1 - 0.35 ** 2) * load ** 2)
+    for k, ph in enumerate(("l12", "l23", "l31")):
+        df[f"voltage_{ph}_v"] = np.round(v * rng.normal(1, 0.006, rows), 1)
+    for k, ph in enumerate(("l1", "l2", "l3")):
+        df[f"current_{ph}_a"] = np.round(i_load * rng.normal(1, 0.02, rows), 2)
+    df["frequency_hz"] = np.round(f, 2)
+    df["speed_rpm"] = speed
+    df["power_kw"] = np.where(rng.random(rows) < 0.5, np.round(load * df["rated_power_kw"] / 0.9, 2), np.nan)
+    return df
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--rows", type=int, default=1_000_000)
+    ap.add_argument("--nameplates", type=int, default=1000)
+    args = ap.parse_args()
+    frame = make_frame(args.rows, args.nameplates)
+    with tempfile.TemporaryDirectory() as tmp:
+        path = Path(tmp) / "readings.csv"
+        frame.to_csv(path, index=False)
+        del frame
+        t0 = time.perf_counter()
+        df = pd.read_csv(path, keep_default_na=False, na_values=[""],
+                         dtype={c: str for c in ("tag", "supply", "driven_load", "design", "taken_at")})
+        t_read = time.perf_counter() - t0
+    engine._cache.clear()
+    t0 = time.perf_counter()
+    out = analyze_frame(df)
+    t_interp = time.perf_counter() - t0
+    errors = int((out["error"] != "").sum())
+    peak_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+    figures = {
+        "rows": args.rows, "nameplates": args.nameplates, "csv_read_s": round(t_read, 3),
+        "interpret_s": round(t_interp, 3), "interpret_over_read": round(t_interp / t_read, 3),
+        "peak_memory_mb": round(peak_mb, 1), "rows_with_error": errors,
+        "goal": "interpret_over_read <= 1.0, peak_memory_mb <= 1536",
+    }
+    print(json.dumps(figures, indent=2))
+
+
+if __name__ == "__main__":
+    main()
