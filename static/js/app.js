@@ -1,0 +1,258 @@
+// The field page: session, screens by URL hash, connection state, the outbox count and replay.
+
+import { api, ApiError, getSession, login, logout, NetworkError } from "./api.js";
+import { $, clear, h } from "./dom.js";
+import * as outbox from "./outbox.js";
+import * as tech from "./technician.js";
+import * as sup from "./supervisor.js";
+
+export const ctx = { user: null, reachable: navigator.onLine, readings: new Map() };
+
+const USER_KEY = "slipwise.user"; // name and role only: offline, the page still knows who is working
+const THEME_KEY = "slipwise.theme";
+
+// --- small shared helpers -------------------------------------------------------------------
+let toastTimer = null;
+export function toast(text) {
+  const el = $("#toast");
+  el.textContent = text;
+  el.classList.add("show");
+  clearTimeout(toastTimer);
+  toastTimer = setTimeout(() => el.classList.remove("show"), 4000);
+}
+
+export function go(hash) {
+  if (location.hash === hash) route();
+  else location.hash = hash;
+}
+
+export function setReachable(ok) {
+  ctx.reachable = ok;
+  const net = $("#net");
+  net.textContent = ok ? "online" : "offline – readings stay on this tablet";
+  net.className = "pill " + (ok ? "online" : "offline");
+}
+
+/** POST a reading body; used by the outbox for new readings and replays alike. */
+export function sendReading(body) {
+  return api("POST", "/readings", body);
+}
+
+export async function refreshCount() {
+  const c = await outbox.counts();
+  const el = $("#outbox-count");
+  const parts = [`${c.waiting} unsent`];
+  if (c.rejected) parts.push(`${c.rejected} rejected`);
+  el.textContent = parts.join(" · ");
+  el.setAttribute("aria-label", `Outbox: ${c.waiting} unsent readings, ${c.rejected} rejected`);
+  el.classList.toggle("has-waiting", c.waiting > 0);
+  el.classList.toggle("has-rejected", c.rejected > 0);
+  el.dataset.waiting = String(c.waiting);
+  el.dataset.rejected = String(c.rejected);
+  return c;
+}
+
+/** Send what is waiting; say what happened. */
+export async function sync(reason) {
+  if (!ctx.user) return null;
+  const c = await outbox.counts();
+  if (!c.waiting) return null;
+  const summary = await outbox.replay(sendReading);
+  if (summary.sent || summary.rejected) setReachable(true);
+  if (summary.stopped === "network") {
+    setReachable(false);
+    askForBackgroundSync();
+  }
+  if (summary.stopped === "login") showBanner("Sign in again to send the readings waiting in the outbox.", "#/login");
+  const bits = [];
+  if (summary.sent) bits.push(`${summary.sent} sent`);
+  if (summary.rejected) bits.push(`${summary.rejected} rejected by the server (see Outbox)`);
+  if (bits.length) toast(`Outbox (${reason}): ${bits.join(", ")}.`);
+  await refreshCount();
+  return summary;
+}
+
+/** Where the browser supports it, the service worker is told to wake the page when the network returns. */
+export async function askForBackgroundSync() {
+  try {
+    const reg = await navigator.serviceWorker.ready;
+    if (reg.sync) await reg.sync.register("slipwise-outbox");
+  } catch { /* "online" and the next page load still send the outbox */ }
+}
+
+function showBanner(text, link) {
+  const b = $("#banner");
+  clear(b, text, link ? h("a", { class: "btn btn-quiet", href: link }, "Go") : null);
+  b.hidden = false;
+}
+
+// --- theme -------------------------------------------------------------------------------------
+function applyTheme(theme) {
+  const root = document.documentElement;
+  const dark = theme ? theme === "dim" : matchMedia("(prefers-color-scheme: dark)").matches;
+  if (theme) root.dataset.theme = theme;
+  const btn = $("#theme");
+  btn.setAttribute("aria-pressed", String(dark));
+  btn.textContent = dark ? "Bright room" : "Dim room";
+  btn.title = dark ? "Switch to the bright palette" : "Switch to the dim palette";
+}
+
+// --- routing -------------------------------------------------------------------------------------
+const ROUTES = [
+  [/^#\/login$/, () => renderLogin],
+  [/^#\/motors$/, () => tech.renderMotors],
+  [/^#\/motor\/new$/, () => tech.renderMotorForm],
+  [/^#\/motor\/(\d+)$/, () => tech.renderReadingForm],
+  [/^#\/pending\/([0-9a-f-]{36})$/, () => tech.renderPending],
+  [/^#\/outbox\/([0-9a-f-]{36})\/fix$/, () => tech.renderCorrection],
+  [/^#\/outbox$/, () => tech.renderOutbox],
+  [/^#\/mine$/, () => tech.renderMine],
+  [/^#\/reading\/(\d+)$/, () => tech.renderReadingView],
+  [/^#\/log$/, () => sup.renderLog],
+];
+
+let routeSeq = 0;
+export function routeIsCurrent(seq) {
+  return seq === routeSeq;
+}
+
+async function route() {
+  const seq = ++routeSeq;
+  let hash = location.hash || "#/motors";
+  if (!ctx.user) hash = "#/login";
+  else if (hash === "#/login") hash = "#/motors";
+  if (hash === "#/log" && ctx.user && ctx.user.role !== "supervisor") hash = "#/mine";
+  const screen = $("#screen");
+  for (const a of document.querySelectorAll("#tabs a")) {
+    const cur = hash.startsWith(`#/${a.dataset.screen}`) || (a.dataset.screen === "motors" && hash.startsWith("#/motor"));
+    if (cur) a.setAttribute("aria-current", "page");
+    else a.removeAttribute("aria-current");
+  }
+  for (const [re, get] of ROUTES) {
+    const m = hash.match(re);
+    if (!m) continue;
+    try {
+      await get()(screen, m[1], seq);
+    } catch (e) {
+      if (!routeIsCurrent(seq)) return;
+      clear(screen, h("h1", { tabindex: "-1" }, "Something went wrong"), h("p", { class: "error" }, String(e.message || e)));
+    }
+    if (!routeIsCurrent(seq)) return;
+    const heading = screen.querySelector("h1");
+    // a new screen: move focus to its heading (screen readers announce it), unless it placed focus itself
+    if (heading && !screen.contains(document.activeElement)) heading.focus({ preventScroll: true });
+    return;
+  }
+  go("#/motors");
+}
+
+// --- screens owned here --------------------------------------------------------------------------
+async function renderLogin(el) {
+  const err = h("p", { class: "error", id: "login-error", role: "alert" });
+  const user = h("input", { id: "login-user", name: "username", autocomplete: "username", autocapitalize: "none",
+    spellcheck: "false", required: true, "aria-describedby": "login-error" });
+  const pass = h("input", { id: "login-pass", name: "password", type: "password", autocomplete: "current-password",
+    required: true, "aria-describedby": "login-error" });
+  const form = h("form", { class: "panel", novalidate: true },
+    h("div", { class: "grid" },
+      h("div", { class: "field" }, h("label", { for: "login-user" }, "User name"), user),
+      h("div", { class: "field" }, h("label", { for: "login-pass" }, "Password"), pass)),
+    err,
+    h("div", { class: "actions" }, h("button", { class: "btn btn-main", type: "submit" }, "Sign in")));
+  form.addEventListener("submit", async (ev) => {
+    ev.preventDefault();
+    err.textContent = "";
+    try {
+      const u = await login(user.value.trim(), pass.value);
+      setReachable(true);
+      signedIn(u);
+      sync("signed in");
+      go("#/motors");
+    } catch (e) {
+      err.textContent = e instanceof NetworkError
+        ? "No connection to the server: signing in needs the network once. Readings already in the outbox are kept."
+        : e.message;
+      pass.select();
+    }
+  });
+  clear(el, h("h1", { tabindex: "-1" }, "Sign in"),
+    h("p", { class: "muted" }, "Sign in once per shift. The page then works in the plant room without a network; readings wait in the outbox until they can be sent."),
+    form);
+  user.focus();
+}
+
+function signedIn(u) {
+  ctx.user = u;
+  localStorage.setItem(USER_KEY, JSON.stringify({ username: u.username, role: u.role, full_name: u.full_name }));
+  $("#who").textContent = `${u.full_name || u.username} · ${u.role}`;
+  $("#logout").hidden = false;
+  $("#tabs").hidden = false;
+  for (const a of document.querySelectorAll("#tabs [data-role]")) a.hidden = u.role !== a.dataset.role;
+  $("#banner").hidden = true;
+}
+
+async function signOut() {
+  const c = await outbox.counts();
+  if (c.total && !confirm(`${c.total} reading(s) are still in the outbox on this tablet. They are kept and sent after the next sign-in. Sign out?`)) return;
+  try {
+    await logout();
+  } catch (e) {
+    if (!(e instanceof NetworkError)) toast(e.message);
+  }
+  ctx.user = null;
+  localStorage.removeItem(USER_KEY);
+  $("#who").textContent = "";
+  $("#logout").hidden = true;
+  $("#tabs").hidden = true;
+  go("#/login");
+}
+
+// --- start ---------------------------------------------------------------------------------------
+async function boot() {
+  applyTheme(localStorage.getItem(THEME_KEY));
+  $("#theme").addEventListener("click", () => {
+    const dark = $("#theme").getAttribute("aria-pressed") === "true";
+    const next = dark ? "bright" : "dim";
+    localStorage.setItem(THEME_KEY, next);
+    applyTheme(next);
+  });
+  $("#logout").addEventListener("click", signOut);
+  window.addEventListener("hashchange", route);
+  window.addEventListener("outbox-change", refreshCount);
+  window.addEventListener("page-outdated", () => showBanner("A new version of the page is ready. Reload to use it; the outbox is kept.", location.hash));
+  window.addEventListener("online", () => sync("network back"));
+  window.addEventListener("offline", () => setReachable(false));
+  setReachable(navigator.onLine);
+
+  if ("serviceWorker" in navigator) {
+    navigator.serviceWorker.register("/sw.js").catch(() => {});
+    navigator.serviceWorker.addEventListener("message", (ev) => {
+      if (ev.data && ev.data.type === "replay") sync("background sync");
+    });
+  }
+  if (navigator.storage && navigator.storage.persist) navigator.storage.persist().catch(() => {});
+
+  try {
+    await refreshCount();
+  } catch (e) {
+    showBanner("This browser keeps no offline storage (private mode?): readings cannot be kept without a network.");
+  }
+  try {
+    const u = await getSession();
+    setReachable(true);
+    signedIn(u);
+  } catch (e) {
+    if (e instanceof NetworkError) {
+      setReachable(false);
+      const cached = JSON.parse(localStorage.getItem(USER_KEY) || "null");
+      if (cached) signedIn(cached);
+    } else if (e instanceof ApiError && e.status === 401) {
+      localStorage.removeItem(USER_KEY);
+    }
+  }
+  await route();
+  document.documentElement.dataset.ready = "1";
+  sync("page opened");
+}
+
+boot();

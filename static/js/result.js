@@ -1,0 +1,148 @@
+// A reading's result, drawn so that a technician reads it in five seconds: the load and its band
+// against the limits, the findings as sentences with their cautions, supply quality, margins.
+
+import { fmt, h, s } from "./dom.js";
+
+// The server's default thresholds (server/physics/flags.py, Thresholds). The API does not publish
+// the configured values, so the bar draws these and the flags from the server decide.
+export const LIMITS = { underloaded_pct: 40, overloaded_pct: 100 };
+
+export const FLAG_WORDS = {
+  underloaded: "Underloaded",
+  overloaded: "Overloaded",
+  over_service_factor: "Above the service factor",
+  near_breakdown: "Close to breakdown torque",
+  voltage_unbalance: "Voltage unbalance",
+  current_unbalance: "Current unbalance",
+  supply_out_of_tolerance: "Supply outside tolerance",
+  speed_above_synchronous: "Speed above synchronous",
+  readings_inconsistent: "Readings contradict each other",
+  starting_torque_low: "Starting torque margin low",
+};
+const SEVERE = new Set(["overloaded", "over_service_factor", "near_breakdown", "readings_inconsistent", "speed_above_synchronous"]);
+
+export const SAFETY_NOTE = "These results support a qualified person's judgement; they do not replace it. Before any work on "
+  + "the motor or its supply, isolate, lock off and prove dead. Local electrical codes and licensed practice prevail.";
+
+export function verdict(result) {
+  const flags = new Set(result.flags || []);
+  if (flags.has("speed_above_synchronous")) return { cls: "bad", text: "No load estimate" };
+  if (flags.has("readings_inconsistent")) return { cls: "bad", text: "Take the readings again" };
+  if (flags.has("overloaded") || flags.has("over_service_factor")) return { cls: "bad", text: "Overloaded" };
+  if (flags.has("near_breakdown")) return { cls: "bad", text: "Close to breakdown" };
+  if (flags.has("underloaded")) return { cls: "warn", text: "Underloaded" };
+  if (flags.size) return { cls: "warn", text: "Within rating, see findings" };
+  return { cls: "ok", text: "Within rating" };
+}
+
+/** The load bar: zones underloaded / normal / overloaded, the band, the estimate. */
+export function loadBar({ load, low, high, serviceFactor = 1, label }) {
+  const W = 640, H = 92, x0 = 16, x1 = W - 16;
+  const top = Math.max(150, (high ?? 0) + 10, 100 * serviceFactor + 20);
+  const X = (p) => x0 + ((x1 - x0) * Math.min(Math.max(p, 0), top)) / top;
+  const under = LIMITS.underloaded_pct, over = LIMITS.overloaded_pct;
+  const parts = [
+    s("title", {}, label),
+    s("rect", { class: "z-under", x: X(0), y: 24, width: X(under) - X(0), height: 30 }),
+    s("rect", { class: "z-ok", x: X(under), y: 24, width: X(over) - X(under), height: 30 }),
+    s("rect", { class: "z-over", x: X(over), y: 24, width: X(top) - X(over), height: 30 }),
+  ];
+  for (const [p, text] of [[0, "0"], [under, `${under} % under`], [over, `${over} % rated`]]) {
+    parts.push(s("line", { class: "tick", x1: X(p), x2: X(p), y1: 20, y2: 58 }));
+    parts.push(s("text", { x: X(p), y: 74, "text-anchor": p === 0 ? "start" : "middle" }, text));
+  }
+  if (serviceFactor > 1) {
+    const p = 100 * serviceFactor;
+    parts.push(s("line", { class: "tick", x1: X(p), x2: X(p), y1: 20, y2: 58, "stroke-dasharray": "4 3" }));
+    parts.push(s("text", { x: X(p), y: 88, "text-anchor": "middle" }, `SF ${serviceFactor}`));
+  }
+  parts.push(s("text", { x: X(top), y: 74, "text-anchor": "end" }, `${top.toFixed(0)} %`));
+  if (low != null && high != null) {
+    parts.push(s("rect", { class: "band", x: X(low), y: 29, width: Math.max(X(high) - X(low), 2), height: 20, rx: 3 }));
+  }
+  if (load != null) {
+    parts.push(s("polygon", { class: "mark", points: `${X(load) - 8},6 ${X(load) + 8},6 ${X(load)},22` }));
+    parts.push(s("rect", { class: "mark", x: X(load) - 1.5, y: 22, width: 3, height: 34 }));
+  }
+  return s("svg", { class: "loadbar", viewBox: `0 0 ${W} ${H}`, role: "img", "aria-label": label }, parts);
+}
+
+function fact(term, value, extra, key) {
+  return h("div", {}, h("dt", {}, term),
+    h("dd", { dataset: key ? { key } : undefined }, value, extra ? h("span", { class: "muted" }, " ", extra) : null));
+}
+
+export function findingsList(findings) {
+  if (!findings || !findings.length) return h("p", {}, "No findings: nothing outside the limits.");
+  return h("ul", { class: "findings" }, findings.map((f) =>
+    h("li", { class: ["finding", SEVERE.has(f.flag) && "severe"], dataset: { flag: f.flag } },
+      h("h3", {}, FLAG_WORDS[f.flag] || f.flag),
+      h("p", {}, f.text),
+      f.caution ? h("p", { class: "caution" }, f.caution) : null)));
+}
+
+/** The server's interpretation of a stored reading. */
+export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
+  const v = verdict(result);
+  const flags = new Set(result.flags || []);
+  const band = result.load_low_pct != null ? `band ${fmt(result.load_low_pct, 0)}–${fmt(result.load_high_pct, 0)} %` : "no band";
+  const label = `Load ${fmt(result.load_pct, 0)} % of rated output, ${band}; underloaded below ${LIMITS.underloaded_pct} %, overloaded above ${LIMITS.overloaded_pct} %`;
+  const out = [];
+  out.push(h("section", { class: "panel", "aria-labelledby": "load-h" },
+    h("h2", { id: "load-h" }, "Load"),
+    h("div", { class: "result-head" },
+      h("span", { class: "big", id: "load-value" }, result.load_pct == null ? "–" : `${fmt(result.load_pct, 0)} %`),
+      h("span", {}, "of rated output, ", band),
+      h("span", { class: ["verdict", v.cls], id: "verdict" }, v.text)),
+    loadBar({ load: result.load_pct, low: result.load_low_pct, high: result.load_high_pct, serviceFactor, label }),
+    h("dl", { class: "facts" },
+      fact("Torque", `${fmt(result.torque_pct, 0)} %`, "of rated"),
+      fact("Output", `${fmt(result.output_kw, 1)} kW`),
+      fact("Slip", `${fmt(result.slip_pct, 2)} %`, `${fmt(result.slip_rpm, 0)} rpm`),
+      fact("Breakdown margin", result.breakdown_margin == null ? "–" : `× ${fmt(result.breakdown_margin, 2)}`, "breakdown ÷ present torque"),
+      fact("Efficiency", `${fmt(result.efficiency_pct, 1)} %`, result.efficiency_low_pct != null ? `${fmt(result.efficiency_low_pct, 1)}–${fmt(result.efficiency_high_pct, 1)} %` : ""),
+      fact("Efficiency class", result.efficiency_class || "–", "rated"))));
+  if (flags.has("readings_inconsistent")) {
+    const f = (result.findings || []).find((x) => x.flag === "readings_inconsistent");
+    out.push(h("section", { class: "panel retake", "aria-labelledby": "retake-h" },
+      h("h2", { id: "retake-h" }, "Take the readings again"),
+      h("p", {}, f ? f.text : "The load methods disagree beyond their bands."),
+      onRetake ? h("button", { class: "btn btn-main", type: "button", id: "take-again", onclick: onRetake }, "Take again") : null));
+  }
+  out.push(h("section", { class: "panel", "aria-labelledby": "find-h" },
+    h("h2", { id: "find-h" }, "Findings"), findingsList(result.findings)));
+  out.push(h("section", { class: "panel", "aria-labelledby": "supply-h" },
+    h("h2", { id: "supply-h" }, "Supply quality"),
+    h("dl", { class: "facts" },
+      fact("Voltage unbalance", `${fmt(result.voltage_unbalance_pct, 2)} %`, "NEMA max. deviation"),
+      fact("Voltage unbalance factor", `${fmt(result.voltage_unbalance_factor_pct, 2)} %`, "IEC negative sequence"),
+      fact("Current unbalance", `${fmt(result.current_unbalance_pct, 1)} %`, "NEMA max. deviation"),
+      fact("Derating factor", fmt(result.derating_factor, 2), "NEMA MG 1"),
+      fact("Voltage deviation", `${fmt(result.voltage_deviation_pct, 1)} %`),
+      fact("Frequency deviation", `${fmt(result.frequency_deviation_pct, 1)} %`),
+      fact("Supply zone", result.supply_zone || "–", "IEC 60034-1"))));
+  out.push(h("section", { class: "panel", "aria-labelledby": "methods-h" },
+    h("h2", { id: "methods-h" }, "Load by method"),
+    h("dl", { class: "facts" },
+      fact("Slip method", `${fmt(result.load_slip_pct, 0)} %`),
+      fact("Current method", `${fmt(result.load_current_pct, 0)} %`),
+      fact("Input-power method", `${fmt(result.load_power_pct, 0)} %`),
+      fact("Synchronous speed", `${fmt(result.sync_speed_rpm, 0)} rpm`, `${result.poles ?? "–"} poles`),
+      fact("Starting margin", result.starting_margin == null ? "–" : `× ${fmt(result.starting_margin, 2)}`),
+      fact("Operating side", result.operating_side || "–"))));
+  return out;
+}
+
+/** The browser's provisional values (static/js/provisional.js), clearly labelled as such. */
+export function provisionalBlock(p, heading = "Provisional result") {
+  return h("section", { class: "panel", "aria-labelledby": "prov-h", id: "provisional" },
+    h("h2", { id: "prov-h" }, heading, " ", h("span", { class: "provisional-label" }, "provisional")),
+    h("p", { class: "muted" }, "Computed on this device from the nameplate and the readings. The server's interpretation (load band, efficiency, breakdown margin, findings) replaces it when the reading is sent."),
+    h("dl", { class: "facts" },
+      fact("Slip-method load", p.load_slip_pct == null ? "–" : `${fmt(p.load_slip_pct, 1)} %`, "of rated output", "load_slip_pct"),
+      fact("Slip", p.slip_pct == null ? "–" : `${fmt(p.slip_pct, 2)} %`, p.slip_rpm == null ? "" : `${fmt(p.slip_rpm, 1)} rpm`, "slip_pct"),
+      fact("Synchronous speed", p.sync_speed_rpm == null ? "–" : `${fmt(p.sync_speed_rpm, 0)} rpm`, p.poles ? `${p.poles} poles` : "", "sync_speed_rpm"),
+      fact("Voltage unbalance", p.voltage_unbalance_pct == null ? "–" : `${fmt(p.voltage_unbalance_pct, 2)} %`, "NEMA max. deviation", "voltage_unbalance_pct"),
+      fact("Current unbalance", p.current_unbalance_pct == null ? "–" : `${fmt(p.current_unbalance_pct, 1)} %`, "NEMA max. deviation", "current_unbalance_pct")),
+    p.notes && p.notes.length ? h("ul", {}, p.notes.map((n) => h("li", {}, n))) : null);
+}

@@ -1,0 +1,449 @@
+// Technician screens: pick or register a motor, enter a reading, see the result, the outbox, the day.
+
+import { api, ApiError, NetworkError } from "./api.js";
+import { askForBackgroundSync, ctx, go, routeIsCurrent, sendReading, setReachable, sync, toast } from "./app.js";
+import { $, clear, fmt, h, localDate, localIso, showTime, uuid } from "./dom.js";
+import { CHOICE_WORDS, crossCheck, FIELD, fmtRange, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, parseField, READING_NUMBERS } from "./fields.js";
+import * as outbox from "./outbox.js";
+import { provisional } from "./provisional.js";
+import { provisionalBlock, resultBlocks, SAFETY_NOTE } from "./result.js";
+
+const SITE_KEY = "slipwise.site";
+
+// --- data with an offline fallback ------------------------------------------------------------
+export async function loadMotors() {
+  try {
+    const r = await api("GET", "/motors");
+    setReachable(true);
+    await outbox.cachePut("motors", r.data.motors);
+    return { motors: r.data.motors, cached: false };
+  } catch (e) {
+    if (!(e instanceof NetworkError)) throw e;
+    setReachable(false);
+    return { motors: (await outbox.cacheGet("motors")) || [], cached: true };
+  }
+}
+
+async function findMotor(id) {
+  const { motors, cached } = await loadMotors();
+  return { motor: motors.find((m) => m.id === id) || null, cached };
+}
+
+// --- form pieces --------------------------------------------------------------------------------
+/** A labelled number input with its unit, hint, range error and cross-check line. */
+export function numberField(f, value, prefix = "f") {
+  const id = `${prefix}-${f.name}`;
+  const hintId = `${id}-hint`, errId = `${id}-err`, chkId = `${id}-chk`;
+  const input = h("input", {
+    id, name: f.name, type: "text", inputmode: "decimal", autocomplete: "off", enterkeyhint: "next",
+    "aria-describedby": `${hintId} ${errId} ${chkId}`, required: f.required || null,
+    value: value == null ? "" : String(value),
+  });
+  const error = h("p", { class: "error", id: errId, "aria-live": "polite" });
+  const check = h("p", { class: "check", id: chkId, "aria-live": "polite" });
+  const hint = h("p", { class: "hint", id: hintId }, [f.help, `Allowed ${fmtRange(f)}.`].filter(Boolean).join(" "));
+  const el = h("div", { class: "field" },
+    h("label", { for: id }, f.label, f.required ? null : h("span", { class: "muted" }, " (optional)")),
+    h("div", { class: "input-unit" }, input, h("span", { class: "unit", "aria-hidden": "true" }, f.unit)),
+    h("span", { class: "sr-only", id: `${id}-unit` }, f.unit), hint, error, check);
+  input.setAttribute("aria-describedby", `${id}-unit ${hintId} ${errId} ${chkId}`);
+  const validate = () => {
+    const r = parseField(f, input.value);
+    error.textContent = r.error || "";
+    input.setAttribute("aria-invalid", r.error ? "true" : "false");
+    return r;
+  };
+  input.addEventListener("input", validate);
+  return { f, el, input, error, check, validate };
+}
+
+function choiceField(c, value, prefix = "f") {
+  const id = `${prefix}-${c.name}`;
+  const select = h("select", { id, name: c.name, "aria-describedby": `${id}-hint` },
+    h("option", { value: "" }, "typical (blank)"),
+    c.choices.map((v) => h("option", { value: v, selected: v === value || null }, CHOICE_WORDS[v] || v)));
+  return { c, select, el: h("div", { class: "field" }, h("label", { for: id }, c.label),
+    select, h("p", { class: "hint", id: `${id}-hint` }, c.help)) };
+}
+
+function textField(name, label, value, opts = {}) {
+  const id = `t-${name}`;
+  const input = h("input", { id, name, value: value || "", autocomplete: "off", maxlength: opts.max || 200,
+    required: opts.required || null, list: opts.list || null, "aria-describedby": `${id}-err` });
+  const error = h("p", { class: "error", id: `${id}-err`, "aria-live": "polite" });
+  return { input, error, el: h("div", { class: "field" }, h("label", { for: id }, label,
+    opts.required ? null : h("span", { class: "muted" }, " (optional)")), input,
+    opts.hint ? h("p", { class: "hint" }, opts.hint) : null, error) };
+}
+
+function motorSummary(m) {
+  const power = m.rated_power_kw != null ? `${m.rated_power_kw} kW` : `${m.rated_power_hp} hp`;
+  return h("div", { class: "panel", id: "motor-card" },
+    h("p", { class: "tag" }, m.tag),
+    h("p", { class: "muted" }, [m.site, m.location].filter(Boolean).join(" · ")),
+    h("p", {}, `${power} · ${m.rated_voltage_v} V · ${m.rated_current_a} A · ${m.rated_frequency_hz} Hz · ${m.rated_speed_rpm} rpm`,
+      ` · ${m.supply || "mains"}`, m.design ? ` · design ${m.design}` : "", m.service_factor ? ` · SF ${m.service_factor}` : ""));
+}
+
+// --- Motors ----------------------------------------------------------------------------------------
+export async function renderMotors(el, _arg, seq) {
+  const { motors, cached } = await loadMotors();
+  if (!routeIsCurrent(seq)) return;
+  const sites = [...new Set(motors.map((m) => m.site))].sort();
+  let site = localStorage.getItem(SITE_KEY) || "";
+  if (site && !sites.includes(site)) site = "";
+  const siteSel = h("select", { id: "site" }, h("option", { value: "" }, "All sites"),
+    sites.map((x) => h("option", { value: x, selected: x === site || null }, x)));
+  const search = h("input", { id: "tag-search", type: "search", autocomplete: "off", placeholder: "e.g. P-101",
+    "aria-controls": "motor-list" });
+  const list = h("ul", { class: "motor-list", id: "motor-list", "aria-label": "Motors" });
+  const count = h("p", { class: "muted", role: "status" });
+  const draw = () => {
+    const q = search.value.trim().toLowerCase();
+    const shown = motors.filter((m) => (!siteSel.value || m.site === siteSel.value) && (!q || m.tag.toLowerCase().includes(q)));
+    clear(list, shown.map((m) => h("li", {}, h("button", { type: "button", class: "motor", dataset: { id: m.id },
+      onclick: () => go(`#/motor/${m.id}`) },
+      h("span", { class: "tag" }, m.tag),
+      h("span", { class: "muted" }, m.site, m.location ? ` · ${m.location}` : ""),
+      h("span", {}, m.rated_power_kw != null ? `${m.rated_power_kw} kW` : `${m.rated_power_hp} hp`, ` · ${m.rated_speed_rpm} rpm · ${m.rated_frequency_hz} Hz`)))));
+    count.textContent = `${shown.length} of ${motors.length} motors${cached ? " (saved copy: offline)" : ""}`;
+  };
+  siteSel.addEventListener("change", () => { localStorage.setItem(SITE_KEY, siteSel.value); draw(); });
+  search.addEventListener("input", draw);
+  clear(el,
+    h("h1", { tabindex: "-1" }, "Motors"),
+    h("div", { class: "panel filters" },
+      h("div", { class: "field" }, h("label", { for: "site" }, "Site"), siteSel),
+      h("div", { class: "field" }, h("label", { for: "tag-search" }, "Find by tag"), search),
+      h("div", { class: "field" }, h("a", { class: "btn", href: "#/motor/new" }, "Register a motor"))),
+    count, list);
+  draw();
+}
+
+// --- Register a motor ---------------------------------------------------------------------------
+export async function renderMotorForm(el) {
+  const { motors } = await loadMotors();
+  const sites = [...new Set(motors.map((m) => m.site))].sort();
+  const site = textField("site", "Site", localStorage.getItem(SITE_KEY) || "", { required: true, max: 120, list: "site-names" });
+  const tag = textField("tag", "Tag", "", { required: true, max: 80, hint: "As painted on the motor or its isolator." });
+  const location = textField("location", "Location", "", { max: 200 });
+  const description = textField("description", "Description", "", { max: 2000 });
+  let unit = "kw";
+  const nums = Object.fromEntries(NAMEPLATE_NUMBERS.map((f) => [f.name, numberField(f, null, "np")]));
+  const choices = Object.fromEntries(NAMEPLATE_CHOICES.map((c) => [c.name, choiceField(c, null, "np")]));
+  nums.rated_power_hp.el.hidden = true;
+  const unitRow = h("fieldset", { class: "choice-row" }, h("legend", {}, "Output given in"),
+    ["kw", "hp"].map((u) => h("label", {}, h("input", { type: "radio", name: "power-unit", value: u, checked: u === "kw" || null,
+      onchange: () => { unit = u; nums.rated_power_kw.el.hidden = u !== "kw"; nums.rated_power_hp.el.hidden = u !== "hp"; } }),
+      u === "kw" ? "kW" : "hp")));
+  const formError = h("p", { class: "error", role: "alert", id: "motor-error" });
+  const required = ["rated_voltage_v", "rated_current_a", "rated_frequency_hz", "rated_speed_rpm"];
+  const optional = ["poles", "rated_power_factor", "rated_efficiency_pct", "service_factor", "breakdown_torque_pct", "locked_rotor_torque_pct"];
+  const form = h("form", { novalidate: true },
+    h("fieldset", { class: "panel" }, h("legend", {}, "Where"), h("div", { class: "grid" }, site.el, tag.el, location.el, description.el),
+      h("datalist", { id: "site-names" }, sites.map((x) => h("option", { value: x })))),
+    h("fieldset", { class: "panel" }, h("legend", {}, "Nameplate"), unitRow,
+      h("div", { class: "grid" }, nums.rated_power_kw.el, nums.rated_power_hp.el, required.map((k) => nums[k].el))),
+    h("fieldset", { class: "panel" }, h("legend", {}, "Optional: blanks use typical values"),
+      h("p", { class: "hint" }, "Leave a field blank when the nameplate or catalogue does not give it; the hint under each field says what is used instead."),
+      h("div", { class: "grid" }, optional.map((k) => nums[k].el), Object.values(choices).map((c) => c.el))),
+    formError,
+    h("div", { class: "actions" }, h("button", { class: "btn btn-main", type: "submit" }, "Save motor"),
+      h("a", { class: "btn", href: "#/motors" }, "Cancel")));
+  form.addEventListener("submit", async (ev) => {
+    ev.preventDefault();
+    formError.textContent = "";
+    const body = { site: site.input.value.trim(), tag: tag.input.value.trim(), location: location.input.value.trim(),
+      description: description.input.value.trim() };
+    let first = null;
+    for (const t of [site, tag]) {
+      t.error.textContent = t.input.value.trim() ? "" : "Needed.";
+      if (!t.input.value.trim() && !first) first = t.input;
+    }
+    for (const [name, fld] of Object.entries(nums)) {
+      if ((name === "rated_power_kw" && unit !== "kw") || (name === "rated_power_hp" && unit !== "hp")) continue;
+      const r = fld.validate();
+      if (name === `rated_power_${unit}` && r.value == null && !r.error) {
+        fld.error.textContent = "Rated output is needed.";
+        fld.input.setAttribute("aria-invalid", "true");
+        first = first || fld.input;
+      }
+      if (r.error) first = first || fld.input;
+      if (r.value != null) body[name] = r.value;
+    }
+    for (const [name, c] of Object.entries(choices)) if (c.select.value) body[name] = c.select.value;
+    if (first) { first.focus(); return; }
+    try {
+      const r = await api("POST", "/motors", body);
+      localStorage.setItem(SITE_KEY, body.site);
+      toast(`Motor ${r.data.tag} saved.`);
+      go(`#/motor/${r.data.id}`);
+    } catch (e) {
+      if (e instanceof NetworkError) formError.textContent = "No connection: a new motor needs the network (readings do not).";
+      else if (e instanceof ApiError) {
+        const target = nums[e.field] || ({ site, tag, location, description })[e.field];
+        if (target) {
+          target.error.textContent = e.message;
+          (target.input || target.select).focus();
+        }
+        formError.textContent = e.message;
+      } else throw e;
+    }
+  });
+  clear(el, h("h1", { tabindex: "-1" }, "Register a motor"), form);
+}
+
+// --- Reading entry ----------------------------------------------------------------------------------
+/**
+ * The reading form for motor `motorId`. opts: {values, supersedes, correcting (outbox entry), serverError}.
+ */
+export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
+  const motorId = Number(motorIdText);
+  const { motor, cached } = await findMotor(motorId);
+  if (!routeIsCurrent(seq)) return;
+  if (!motor) {
+    clear(el, h("h1", { tabindex: "-1" }, "Motor not found"),
+      h("p", {}, cached ? "This motor is not in the copy saved on this tablet. Open the motor list once while online." : `There is no motor with id ${motorId}.`),
+      h("a", { class: "btn", href: "#/motors" }, "Back to motors"));
+    return;
+  }
+  const values = opts.values || {};
+  const fields = Object.fromEntries(READING_NUMBERS.map((f) => [f.name, numberField(f, values[f.name], "rd")]));
+  const group = (legend, names, extra) => h("fieldset", { class: "panel" }, h("legend", {}, legend), extra || null,
+    h("div", { class: "grid" }, names.map((n) => fields[n].el)));
+  const aside = h("aside", { "aria-label": "Provisional values as you type" });
+  const formError = h("p", { class: "error", role: "alert", id: "reading-error" });
+  const submit = h("button", { class: "btn btn-main", type: "submit", id: "submit-reading" }, opts.correcting ? "Send corrected reading" : "Interpret reading");
+
+  const readValues = () => {
+    const out = {};
+    let firstBad = null;
+    for (const fld of Object.values(fields)) {
+      const r = fld.validate();
+      if (r.error && !firstBad) firstBad = fld.input;
+      if (r.value != null && !r.error) out[fld.f.name] = r.value;
+    }
+    return { out, firstBad };
+  };
+  const refresh = () => {
+    const { out } = readValues();
+    const checks = crossCheck(motor, out);
+    for (const fld of Object.values(fields)) fld.check.textContent = checks[fld.f.name] || "";
+    clear(aside, provisionalBlock(provisional({ ...motor, ...out }), "As you type"));
+    return { out, checks };
+  };
+
+  const form = h("form", { novalidate: true, id: "reading-form" },
+    opts.serverError ? h("div", { class: "panel retake", role: "alert", id: "server-message" },
+      h("h2", {}, "The server refused this reading"), h("p", {}, opts.serverError.message),
+      h("p", { class: "muted" }, "Correct the field and send it again; the reading stays in the outbox until then.")) : null,
+    opts.supersedes ? h("p", { class: "panel" }, `This reading replaces reading ${opts.supersedes} (take again).`) : null,
+    group("Speed and frequency", ["frequency_hz", "speed_rpm"]),
+    group("Line currents", ["current_l1_a", "current_l2_a", "current_l3_a"], h("p", { class: "hint" }, "Clamp around one phase conductor at a time. At least one current.")),
+    group("Line voltages", ["voltage_l12_v", "voltage_l23_v", "voltage_l31_v"], h("p", { class: "hint" }, "Line to line at the motor terminals or its isolator. Needed on mains; optional on a drive.")),
+    group("Power analyser (optional)", ["power_kw", "power_factor"]),
+    h("details", { class: "panel" }, h("summary", {}, "Instruments and running time (optional)"),
+      h("div", { class: "grid" }, ["minutes_running", "tachometer_resolution_rpm", "current_accuracy_pct", "voltage_accuracy_pct", "power_accuracy_pct"].map((n) => fields[n].el))),
+    formError,
+    h("div", { class: "actions" }, submit, h("a", { class: "btn", href: "#/motors" }, "Other motor")));
+  form.addEventListener("input", refresh);
+  form.addEventListener("submit", async (ev) => {
+    ev.preventDefault();
+    formError.textContent = "";
+    const { out, firstBad } = readValues();
+    if (firstBad) {
+      formError.textContent = "Some values are outside their allowed range; see the message under the field.";
+      firstBad.focus();
+      return;
+    }
+    const checks = crossCheck(motor, out);
+    const key = Object.keys(checks)[0];
+    if (key) {
+      formError.textContent = checks[key];
+      fields[key].input.focus();
+      return;
+    }
+    submit.disabled = true;
+    const body = { client_id: uuid(), motor_id: motor.id, taken_at: localIso(), ...out };
+    if (opts.supersedes) body.supersedes = opts.supersedes;
+    const entry = outbox.newEntry(body, motor);
+    // into the outbox first: from here on the reading survives a closed tab or a dead network
+    if (opts.correcting) {
+      entry.corrects = opts.correcting.client_id;
+      entry.created_at = opts.correcting.created_at;
+      await outbox.replace(opts.correcting.client_id, entry);
+    } else await outbox.put(entry);
+    ctx.pendingStart = performance.now();
+    go(`#/pending/${entry.client_id}`);
+  });
+
+  clear(el, h("h1", { tabindex: "-1" }, opts.correcting ? "Correct the reading" : "New reading"), motorSummary(motor),
+    h("div", { class: "reading-layout" }, form, aside));
+  refresh();
+  if (opts.serverError && fields[opts.serverError.field]) {
+    const fld = fields[opts.serverError.field];
+    fld.error.textContent = opts.serverError.message;
+    fld.input.setAttribute("aria-invalid", "true");
+    fld.input.focus();
+  } else fields.frequency_hz.input.focus();
+}
+
+// --- after submit: send now, or show provisional and keep ---------------------------------------------
+export async function renderPending(el, clientId, seq) {
+  let entry = await outbox.get(clientId);
+  if (!entry) {
+    clear(el, h("h1", { tabindex: "-1" }, "Reading sent"), h("p", {}, "This reading is no longer in the outbox: the server has it."),
+      h("a", { class: "btn", href: "#/mine" }, "My day"));
+    return;
+  }
+  const status = h("p", { class: "panel", id: "send-state", role: "status" }, "Sending to the server…");
+  const prov = provisional({ ...(entry.nameplate || {}), ...entry.body });
+  const draw = () => clear(el, h("h1", { tabindex: "-1" }, entry.tag), h("p", { class: "muted" }, `${entry.site} · taken ${showTime(entry.body.taken_at)}`),
+    status, provisionalBlock(prov), h("p", { class: "muted" }, SAFETY_NOTE));
+  draw();
+  if (entry.state === "waiting") {
+    const r = await outbox.sendNow(entry, sendReading);
+    if (!routeIsCurrent(seq)) return;
+    if (r.outcome === "sent" && r.reading) {
+      setReachable(true);
+      ctx.readings.set(r.reading.id, r.reading);
+      go(`#/reading/${r.reading.id}`);
+      return;
+    }
+    entry = (await outbox.get(clientId)) || entry;
+    if (r.outcome === "waiting" && r.reason === "network") {
+      setReachable(false);
+      askForBackgroundSync();
+    }
+  }
+  if (entry.state === "rejected") {
+    clear(status, h("span", { class: "state rejected" }, "rejected"), " The server refused this reading: ",
+      h("strong", { id: "reject-message" }, entry.error.message), " ",
+      h("a", { class: "btn", href: `#/outbox/${entry.client_id}/fix` }, "Correct it"));
+    status.classList.add("retake");
+  } else {
+    clear(status, h("span", { class: "state waiting" }, "kept on this tablet"),
+      " No answer from the server. The reading is in the outbox and is sent by itself when the network returns.",
+      " ", h("a", { class: "btn btn-quiet", href: "#/motors" }, "Next motor"));
+  }
+}
+
+// --- Outbox ----------------------------------------------------------------------------------------------
+export async function renderOutbox(el) {
+  const items = await outbox.all();
+  const sendBtn = h("button", { class: "btn btn-main", type: "button", id: "send-now" }, "Send now");
+  sendBtn.addEventListener("click", async () => {
+    sendBtn.disabled = true;
+    const summary = await sync("by hand");
+    if (!summary) toast("Nothing waiting to be sent.");
+    else if (summary.stopped === "network") toast("Still no connection to the server; the readings stay in the outbox.");
+    renderOutbox(el);
+  });
+  clear(el, h("h1", { tabindex: "-1" }, "Outbox"),
+    h("p", {}, "Readings not yet stored by the server. They are sent by themselves on opening the page and when the network returns. A reading the server refuses stays here, with its message, until it is corrected."),
+    h("div", { class: "actions" }, sendBtn),
+    items.length ? h("ul", { class: "entries", id: "outbox-list" }, items.map((e) =>
+      h("li", { class: ["entry", e.state], dataset: { clientId: e.client_id, state: e.state } },
+        h("div", { class: "grow" },
+          h("p", { class: "tag" }, e.tag), h("p", { class: "muted" }, `${e.site} · taken ${showTime(e.body.taken_at || e.created_at)}`),
+          e.state === "rejected"
+            ? h("p", {}, h("span", { class: "state rejected" }, "rejected"), " ", h("span", { class: "reject-message" }, e.error.message))
+            : h("p", {}, h("span", { class: "state waiting" }, "waiting"), e.attempts ? ` · ${e.attempts} attempt(s)` : "")),
+        h("a", { class: "btn", href: `#/pending/${e.client_id}` }, "Provisional result"),
+        e.state === "rejected" ? h("a", { class: "btn btn-bad", href: `#/outbox/${e.client_id}/fix` }, "Correct") : null)))
+      : h("p", { class: "panel", id: "outbox-empty" }, "The outbox is empty: the server has every reading."));
+}
+
+export async function renderCorrection(el, clientId, seq) {
+  const entry = await outbox.get(clientId);
+  if (!entry) return go("#/outbox");
+  const { client_id, motor_id, taken_at, supersedes, ...values } = entry.body;
+  return renderReadingForm(el, String(entry.motor_id), seq, { values, supersedes, correcting: entry, serverError: entry.error });
+}
+
+// --- My day -----------------------------------------------------------------------------------------------
+export async function renderMine(el, _arg, seq) {
+  const date = localDate();
+  let readings = null, note = "";
+  try {
+    const r = await api("GET", `/readings?date=${date}&technician=${encodeURIComponent(ctx.user.username)}`);
+    readings = r.data.readings;
+    await outbox.cachePut("mine", readings);
+    setReachable(true);
+  } catch (e) {
+    if (!(e instanceof NetworkError)) throw e;
+    setReachable(false);
+    readings = (await outbox.cacheGet("mine")) || [];
+    note = " (saved copy: offline)";
+  }
+  if (!routeIsCurrent(seq)) return;
+  const waiting = await outbox.all();
+  clear(el, h("h1", { tabindex: "-1" }, "My day"),
+    h("p", { class: "muted" }, `${date}: ${readings.length} stored reading(s)${note}, ${waiting.length} in the outbox.`),
+    readings.length ? h("ul", { class: "entries", id: "mine-list" }, readings.slice().reverse().map((r) => {
+      const dec = r.review ? r.review.decision : "none";
+      return h("li", { class: "entry", dataset: { id: r.id } },
+        h("div", { class: "grow" }, h("p", { class: "tag" }, r.tag),
+          h("p", { class: "muted" }, `${r.site} · ${showTime(r.taken_at)}`),
+          h("p", {}, `Load ${fmt(r.result.load_pct, 0)} %`, (r.result.flags || []).length ? ` · ${r.result.flags.length} finding(s)` : "")),
+        h("p", {}, h("span", { class: ["state", dec], dataset: { review: dec } }, r.review ? reviewWord(dec) : "not reviewed"),
+          r.review && r.review.comment ? h("span", {}, " ", r.review.comment) : null),
+        h("a", { class: "btn", href: `#/reading/${r.id}` }, "Open"));
+    })) : h("p", { class: "panel" }, "No stored readings today yet."));
+}
+
+export function reviewWord(d) {
+  return { accepted: "accepted", retake: "retake asked", rejected: "rejected" }[d] || d;
+}
+
+// --- One stored reading (technician and supervisor) ------------------------------------------------------------
+export async function renderReadingView(el, idText, seq) {
+  const id = Number(idText);
+  let reading = ctx.readings.get(id);
+  ctx.readings.delete(id);
+  if (!reading) {
+    try {
+      reading = (await api("GET", `/readings/${id}`)).data;
+    } catch (e) {
+      if (e instanceof NetworkError) {
+        clear(el, h("h1", { tabindex: "-1" }, `Reading ${id}`), h("p", {}, "Offline: stored readings open when the network returns."));
+        return;
+      }
+      throw e;
+    }
+  }
+  if (!routeIsCurrent(seq)) return;
+  let { motor } = await findMotor(reading.motor_id);
+  if (ctx.user && ctx.user.role === "supervisor") {
+    try { motor = (await api("GET", `/motors/${reading.motor_id}`)).data; } catch { /* the list's copy will do */ }
+  }
+  if (!routeIsCurrent(seq)) return;
+  const sf = (motor && motor.service_factor) || 1;
+  const retake = () => {
+    const { taken_at, ...values } = reading.inputs;
+    renderReadingForm(el, String(reading.motor_id), seq, { values, supersedes: reading.id });
+  };
+  const rev = reading.review;
+  const head = [
+    h("h1", { tabindex: "-1" }, reading.tag),
+    h("p", { class: "muted" }, `${reading.site} · reading ${reading.id} · taken ${showTime(reading.taken_at)} by ${reading.technician_name || reading.technician}`),
+    h("p", { id: "review-state" }, rev
+      ? [h("span", { class: ["state", rev.decision] }, reviewWord(rev.decision)), ` by ${rev.reviewer}`, rev.comment ? `: ${rev.comment}` : ""]
+      : h("span", { class: "state none" }, "not reviewed yet")),
+  ];
+  if (ctx.pendingStart) {
+    ctx.resultShownMs = performance.now() - ctx.pendingStart;
+    ctx.pendingStart = null;
+    document.documentElement.dataset.resultMs = String(Math.round(ctx.resultShownMs));
+  }
+  const picture = h("section", { class: "panel", "aria-labelledby": "pic-h" }, h("h2", { id: "pic-h" }, "Torque and speed"),
+    h("img", { class: "picture", src: `/api/v1/readings/${reading.id}/torque-speed.svg`, width: 750, height: 460, loading: "lazy",
+      alt: `Torque–speed picture: the motor's torque at rated and measured voltage, the driven load's torque through the operating point at ${reading.inputs.speed_rpm} rpm, and the breakdown point.` }));
+  const extra = [];
+  const sup = await import("./supervisor.js");
+  extra.push(sup.historyBlock(reading, motor));
+  if (ctx.user && ctx.user.role === "supervisor") extra.push(sup.reviewForm(reading, () => renderReadingView(el, idText, seq)), sup.inputsBlock(reading, motor));
+  clear(el, head, h("div", { class: "two-col" },
+    h("div", {}, resultBlocks(reading.result, { serviceFactor: sf, onRetake: retake })),
+    h("div", {}, picture, extra, h("p", { class: "panel muted", id: "safety" }, SAFETY_NOTE))));
+}
