@@ -626,9 +626,11 @@ def _interpret_valid(plates: _Parsed, fitted: np.ndarray, r: _Parsed, th: Thresh
         stable = torque_speed.is_stable(motor_slope, load_slope) & (s_run < s_max)
         has_point = ~above & ~np.isnan(load_pu)
         unstable = has_point & ~stable
-        # two methods that disagree where the slip says "past breakdown" and the current does
-        # not: the speed reading is the suspect (a pulley or driven shaft read)
-        speed_suspect = (outlier == -2) & (s_run > s_max) & (methods[1].value < 1.2)
+        # two methods that disagree, the slip method far above the current method: the speed
+        # reading is the suspect (a belt pulley or the driven shaft read, the commonest slip
+        # error; common practice), as it is where the slip says "past breakdown"
+        speed_suspect = (outlier == -2) & ((s_run > s_max) | (methods[0].value > 1.3 * methods[1].value)) \
+            & (methods[1].value < 1.2)
         outlier = np.where(speed_suspect, 0, outlier)
         lrt_now = pl("lrt_pct") * (v / v_r) ** 2
         need = pl("breakaway_share") * np.maximum(100.0 * torque_pu, 10.0)

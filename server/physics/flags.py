@@ -95,14 +95,14 @@ CAUTION_MEASURE = (
     "clear of rotating parts and live terminals; local electrical codes and licensed practice prevail.")
 
 _INCONSISTENT_TEXT = {
-    0: ("The slip-method load disagrees with the current and input-power methods beyond their bands. "
+    0: ("The slip-method load disagrees with the other load methods beyond their bands. "
         "Re-check the speed: tachometer on the motor shaft itself (not a belt pulley or the driven shaft), "
         "one reflective mark, and the nameplate's rated speed."),
-    1: ("The current-method load disagrees with the slip and input-power methods beyond their bands. "
+    1: ("The current-method load disagrees with the other load methods beyond their bands. "
         "Re-check the currents: clamp around one phase conductor only (not a cable with two phases or "
         "parallel conductors), the meter range, and the nameplate current for the connected voltage "
         "(dual-voltage motors)."),
-    2: ("The input-power load disagrees with the slip and current methods beyond their bands. "
+    2: ("The input-power load disagrees with the other load methods beyond their bands. "
         "Re-check the power reading: the analyser's clamp orientation and phase order, the power-factor "
         "reading, and that it measures this motor only."),
     -2: ("The load methods disagree beyond their bands. Re-check the speed (tachometer on the motor shaft, "

@@ -283,8 +283,8 @@ def fuse(estimates):
         False where two methods disagree by more than their bands allow.
     outlier : numpy.ndarray of int
         Index of the method that disagrees with the others: the one in most
-        disagreeing pairs, on a tie the one farthest from the median in its
-        own sigmas; -1 where all agree, -2 where only two methods disagree
+        disagreeing pairs, on a tie the one farthest from the median; -1
+        where all agree, -2 where only two methods disagree
         (either may be the wrong one).
     """
     v = np.stack([np.asarray(e.value, dtype=float) for e in estimates])
@@ -321,11 +321,12 @@ def fuse(estimates):
     votes = pair.sum(axis=1)                 # how many methods each one disagrees with
     top = votes.max(axis=0)
     unique_top = (votes == top).sum(axis=0) == 1
-    # a tie among three or more: the one farthest from the median, in its own sigmas
+    # a tie among three or more: the one farthest from the median (in load, not in
+    # sigmas: a tight band must not make a method the culprit by itself)
     with np.errstate(invalid="ignore", divide="ignore"), warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)     # all-NaN rows: no method available
         median = np.nanmedian(np.where(ok, v, np.nan), axis=0) if m >= 3 else np.nanmean(v, axis=0)
-        distance = np.where(ok, np.abs(v - median) / sigma, -np.inf)
+        distance = np.where(ok, np.abs(v - median), -np.inf)
     by_votes = np.argmax(votes, axis=0)
     by_distance = np.argmax(distance, axis=0)
     outlier = np.where(consistent, -1, np.where(n_ok >= 3, np.where(unique_top, by_votes, by_distance), -2))

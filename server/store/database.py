@@ -82,6 +82,11 @@ class Database:
         with self.read() as conn:
             return migrations.current_version(conn)
 
+    def stored_version(self) -> int:
+        """The schema version row alone (one cheap query, for health checks)."""
+        with self.read() as conn:
+            return int(conn.exec_driver_sql("SELECT version FROM schema_version").scalar_one())
+
     def upgrade(self, target: int = migrations.HEAD) -> tuple[int, int]:
         with self.write() as conn:
             return migrations.upgrade(conn, target)

@@ -27,7 +27,7 @@ def health():
     query(())
     st = state()
     try:
-        version = st.db.version()
+        version = st.db.stored_version()
     except Exception:  # the database is down: say so instead of failing
         return jsonify({"status": "unavailable", "engine_version": ENGINE_VERSION}), 503
     return jsonify({"status": "ok", "engine_version": ENGINE_VERSION, "schema_version": version,
