@@ -8,13 +8,14 @@ that won (same content -> that row, different -> ConflictError).
 
 from __future__ import annotations
 
+import functools
 import hashlib
 import json
 import math
 from dataclasses import dataclass
 from typing import Any, Callable, Iterator, Mapping
 
-from sqlalchemy import Connection, func, select
+from sqlalchemy import Connection, bindparam, func, select
 from sqlalchemy.exc import IntegrityError
 
 from . import audit
@@ -81,9 +82,11 @@ _superseding = readings.alias("superseding")
 _review = reviews.alias("latest_review")
 
 
-def _reading_select(with_nameplate: bool = False):
-    latest = (select(reviews.c.reading_id, func.max(reviews.c.id).label("review_id"))
-              .group_by(reviews.c.reading_id).subquery())
+def _reading_select(with_nameplate: bool = False, reading_id=None):
+    latest = select(reviews.c.reading_id, func.max(reviews.c.id).label("review_id"))
+    if reading_id is not None:  # one reading: do not group the whole reviews table
+        latest = latest.where(reviews.c.reading_id == reading_id)
+    latest = latest.group_by(reviews.c.reading_id).subquery()
     cols = [readings.c.id, readings.c.client_id, readings.c.motor_id, readings.c.motor_revision_id,
             motor_revisions.c.revision.label("motor_revision"), sites.c.name.label("site"), motors.c.tag,
             _tech.c.username.label("technician"), _tech.c.full_name.label("technician_name"),
@@ -92,7 +95,7 @@ def _reading_select(with_nameplate: bool = False):
             _review.c.reviewed_at, _reviewer.c.username.label("reviewer"), readings.c.inputs, readings.c.result]
     if with_nameplate:
         cols += [motor_revisions.c[f] for f in REVISION_FIELDS]
-    return (select(*cols).select_from(readings)
+    q = (select(*cols).select_from(readings)
             .join(motors, motors.c.id == readings.c.motor_id)
             .join(sites, sites.c.id == motors.c.site_id)
             .join(motor_revisions, motor_revisions.c.id == readings.c.motor_revision_id)
@@ -101,6 +104,7 @@ def _reading_select(with_nameplate: bool = False):
             .outerjoin(latest, latest.c.reading_id == readings.c.id)
             .outerjoin(_review, _review.c.id == latest.c.review_id)
             .outerjoin(_reviewer, _reviewer.c.id == _review.c.reviewer_id))
+    return q.where(readings.c.id == reading_id) if reading_id is not None else q
 
 
 def _filtered(q, *, date=None, site=None, technician=None, flag=None, motor_id=None):
@@ -137,8 +141,14 @@ def reading_json(row) -> str:
             + ',"inputs":' + row["inputs"] + ',"result":' + row["result"] + "}")
 
 
+@functools.lru_cache(maxsize=1)
+def _one_reading_select():
+    # built once: composing this select costs more than running it
+    return _reading_select(reading_id=bindparam("reading_id"))
+
+
 def get_reading_json(conn: Connection, reading_id: int) -> str:
-    row = conn.execute(_reading_select().where(readings.c.id == reading_id)).mappings().first()
+    row = conn.execute(_one_reading_select(), {"reading_id": reading_id}).mappings().first()
     if row is None:
         raise NotFoundError(f"no reading with id {reading_id}", "id")
     return reading_json(row)
@@ -202,13 +212,12 @@ def submit(db: Database, user: Mapping[str, Any], sub: Submission, interpret: In
         found = _existing(conn, sub.client_id)
         if found:
             return _replay(conn, found, digest, sub.client_id), False
-        motor = conn.execute(select(motors.c.tag, func.max(motor_revisions.c.id).label("revision_id"))
-                             .join(motor_revisions, motor_revisions.c.motor_id == motors.c.id)
-                             .where(motors.c.id == sub.motor_id).group_by(motors.c.tag)).first()
-        if motor is None:
+        revision = conn.execute(select(motor_revisions, motors.c.tag.label("motor_tag"))
+                                .join(motors, motors.c.id == motor_revisions.c.motor_id)
+                                .where(motor_revisions.c.motor_id == sub.motor_id)
+                                .order_by(motor_revisions.c.revision.desc()).limit(1)).mappings().first()
+        if revision is None:
             raise NotFoundError(f"no motor with id {sub.motor_id}", "motor_id")
-        revision = conn.execute(select(motor_revisions).where(motor_revisions.c.id == motor.revision_id)
-                                ).mappings().one()
         if sub.supersedes is not None:
             old = conn.execute(select(readings.c.motor_id).where(readings.c.id == sub.supersedes)).first()
             if old is None:
@@ -216,7 +225,7 @@ def submit(db: Database, user: Mapping[str, Any], sub: Submission, interpret: In
             if old.motor_id != sub.motor_id:
                 raise ValidationError(f"reading {sub.supersedes} is of another motor; a correction must be of "
                                       "the same motor", "supersedes")
-    result = interpret(engine_record(revision, motor.tag, sub.inputs, sub.taken_at))
+    result = interpret(engine_record(revision, revision["motor_tag"], sub.inputs, sub.taken_at))
     now = utcnow()
     stored_inputs = dict(sub.inputs)
     stored_inputs["taken_at"] = sub.taken_at
@@ -234,6 +243,7 @@ def submit(db: Database, user: Mapping[str, Any], sub: Submission, interpret: In
                 conn.execute(reading_flags.insert(), [{"reading_id": rid, "flag": f} for f in flags])
             audit.record(conn, user, "reading.supersede" if sub.supersedes else "reading.submit", "reading", rid,
                          {"client_id": sub.client_id, "motor_id": sub.motor_id, "supersedes": sub.supersedes})
+            return get_reading(conn, rid), True
     except IntegrityError:
         with db.read() as conn:
             found = _existing(conn, sub.client_id)
@@ -241,8 +251,6 @@ def submit(db: Database, user: Mapping[str, Any], sub: Submission, interpret: In
                 return _replay(conn, found, digest, sub.client_id), False
         raise ConflictError(f"reading {sub.supersedes} is already superseded by another reading; "
                             "supersede the newest one", "supersedes") from None
-    with db.read() as conn:
-        return get_reading(conn, rid), True
 
 
 def add_review(db: Database, user: Mapping[str, Any], reading_id: int, decision: str, comment: str) -> dict:
