@@ -31,7 +31,7 @@ function histogram(readings) {
   }
   const peak = Math.max(1, ...bins);
   const bw = (W - left - 10) / bins.length;
-  const y = (n) => bottom - (150 * n) / peak;
+  const y = (n) => bottom - (136 * n) / peak;
   const parts = [s("title", {}, "Load distribution of the day's readings")];
   bins.forEach((n, i) => {
     if (n) parts.push(s("rect", { class: "bar", x: left + i * bw + 1, y: y(n), width: bw - 2, height: bottom - y(n) },
@@ -42,10 +42,10 @@ function histogram(readings) {
   parts.push(s("line", { class: "axis", x1: left, x2: W - 10, y1: bottom, y2: bottom }));
   for (const lim of [LIMITS.underloaded_pct, LIMITS.overloaded_pct]) {
     const x = left + (lim / binW) * bw;
-    parts.push(s("line", { class: "limit", x1: x, x2: x, y1: 16, y2: bottom }));
+    parts.push(s("line", { class: "limit", x1: x, x2: x, y1: 4, y2: bottom }));
   }
-  parts.push(s("text", { x: left + (LIMITS.underloaded_pct / binW) * bw + 4, y: 14 }, "underloaded below"));
-  parts.push(s("text", { x: left + (LIMITS.overloaded_pct / binW) * bw + 4, y: 14 }, "overloaded above"));
+  parts.push(s("text", { x: left + (LIMITS.underloaded_pct / binW) * bw - 4, y: 14, "text-anchor": "end" }, `under ${LIMITS.underloaded_pct} %`));
+  parts.push(s("text", { x: left + (LIMITS.overloaded_pct / binW) * bw + 4, y: 14 }, `over ${LIMITS.overloaded_pct} %`));
   parts.push(s("text", { x: W - 10, y: bottom + 32, "text-anchor": "end" }, "load [% of rated output]"));
   const label = `Load distribution: ${bins.map((n, i) => (n ? `${n} at ${i * binW} %` : null)).filter(Boolean).join(", ") || "no readings"}${none ? `; ${none} without a load estimate` : ""}`;
   return s("svg", { class: "histogram", viewBox: `0 0 ${W} ${H}`, role: "img", "aria-label": label }, parts);
@@ -170,7 +170,8 @@ export function inputsBlock(reading, motor) {
       h("tbody", {}, READING_NUMBERS.map((f) => row(f.label, reading.inputs[f.name], f.unit)))),
     h("h3", {}, `Nameplate (revision ${reading.motor_revision})`),
     h("table", { class: "kv" }, h("caption", { class: "sr-only" }, "Nameplate used"),
-      h("tbody", {}, NAMEPLATE_NUMBERS.map((f) => row(f.label, np[f.name], f.unit)),
+      h("tbody", {}, NAMEPLATE_NUMBERS.filter((f) => !(f.name.startsWith("rated_power_") && np[f.name] == null))
+        .map((f) => row(f.label, np[f.name], f.unit)),
         NAMEPLATE_CHOICES.map((c) => row(c.label, np[c.name] || "typical")))));
 }
 

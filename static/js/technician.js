@@ -346,6 +346,8 @@ export async function renderOutbox(el) {
       h("li", { class: ["entry", e.state], dataset: { clientId: e.client_id, state: e.state } },
         h("div", { class: "grow" },
           h("p", { class: "tag" }, e.tag), h("p", { class: "muted" }, `${e.site} · taken ${showTime(e.body.taken_at || e.created_at)}`),
+          h("p", {}, [["speed_rpm", "rpm"], ["frequency_hz", "Hz"], ["current_l1_a", "A"], ["voltage_l12_v", "V"], ["power_kw", "kW"]]
+            .filter(([k]) => e.body[k] != null).map(([k, u]) => `${e.body[k]} ${u}`).join(" · ")),
           e.state === "rejected"
             ? h("p", {}, h("span", { class: "state rejected" }, "rejected"), " ", h("span", { class: "reject-message" }, e.error.message))
             : h("p", {}, h("span", { class: "state waiting" }, "waiting"), e.attempts ? ` · ${e.attempts} attempt(s)` : "")),
@@ -437,7 +439,7 @@ export async function renderReadingView(el, idText, seq) {
     document.documentElement.dataset.resultMs = String(Math.round(ctx.resultShownMs));
   }
   const picture = h("section", { class: "panel", "aria-labelledby": "pic-h" }, h("h2", { id: "pic-h" }, "Torque and speed"),
-    h("img", { class: "picture", src: `/api/v1/readings/${reading.id}/torque-speed.svg`, width: 750, height: 460, loading: "lazy",
+    h("img", { class: "picture", src: `/api/v1/readings/${reading.id}/torque-speed.svg`, width: 750, height: 460,
       alt: `Torque–speed picture: the motor's torque at rated and measured voltage, the driven load's torque through the operating point at ${reading.inputs.speed_rpm} rpm, and the breakdown point.` }));
   const extra = [];
   const sup = await import("./supervisor.js");

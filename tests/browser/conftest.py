@@ -29,8 +29,8 @@ PASSWORDS = {"tess": "tablet-pass-1", "sam": "desk-pass-22"}
 
 
 class Service:
-    def __init__(self, base: str, token: str, app):
-        self.base, self.token, self.app = base, token, app
+    def __init__(self, base: str, token: str, tech_token: str, app):
+        self.base, self.token, self.tech_token, self.app = base, token, tech_token, app
 
     def call(self, method: str, path: str, body=None, token: str | None = None):
         """(status, parsed JSON or text) of an API call with the supervisor's bearer token."""
@@ -77,11 +77,12 @@ def service(tmp_path_factory):
         accounts.add_user(conn, "tess", "technician", PASSWORDS["tess"], full_name="Tess Okafor")
         accounts.add_user(conn, "sam", "supervisor", PASSWORDS["sam"], full_name="Sam Lindqvist")
         token = accounts.create_token(conn, "sam", label="browser tests")
+        tech_token = accounts.create_token(conn, "tess", label="browser tests")
     logging.getLogger("werkzeug").setLevel(logging.WARNING)
     httpd = make_server("127.0.0.1", 0, app, threaded=True)
     thread = threading.Thread(target=httpd.serve_forever, daemon=True)
     thread.start()
-    yield Service(f"http://127.0.0.1:{httpd.server_port}", token, app)
+    yield Service(f"http://127.0.0.1:{httpd.server_port}", token, tech_token, app)
     httpd.shutdown()
     thread.join(timeout=10)
 
@@ -108,6 +109,8 @@ def new_context(browser, service):
     made = []
 
     def make(viewport=TABLET, **kw):
+        # the page's "today" and the server's date of a reading sent without taken_at agree in UTC
+        kw.setdefault("timezone_id", "UTC")
         ctx = browser.new_context(base_url=service.base, viewport=viewport, accept_downloads=True, **kw)
         ctx.set_default_timeout(15000)
         made.append(ctx)

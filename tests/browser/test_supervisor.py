@@ -1,0 +1,94 @@
+"""The supervisor's day at a desktop viewport: log, filters, sorting, summary, review, CSV record;
+and the review seen by the technician."""
+
+from __future__ import annotations
+
+import csv
+import io
+import uuid
+
+import pytest
+
+from .conftest import DESKTOP, TABLET, shot, sign_in, wait_until
+
+pytestmark = pytest.mark.browser
+
+SITE = "Northgate water works"
+# speeds on the 15 kW 1460 rpm nameplate: higher speed -> less slip -> less load
+SPEEDS = [1492, 1470, 1480, 1461]
+
+
+def seed(service):
+    motors = [service.motor(f"NW-{n} blower", site=SITE) for n in (1, 2)]
+    ids = []
+    for i, speed in enumerate(SPEEDS):
+        status, r = service.call("POST", "/api/v1/readings", {
+            "client_id": str(uuid.uuid4()), "motor_id": motors[i % 2]["id"], "frequency_hz": 50, "speed_rpm": speed,
+            "current_l1_a": 12 + 4 * i, "current_l2_a": 12 + 4 * i, "current_l3_a": 12.5 + 4 * i,
+            "voltage_l12_v": 400, "voltage_l23_v": 401, "voltage_l31_v": 399}, token=service.tech_token)
+        assert status == 201, r
+        ids.append(r["id"])
+    return motors, ids
+
+
+def test_supervisor_review_and_csv_desktop(new_context, service):
+    motors, ids = seed(service)
+    ctx = new_context(DESKTOP)
+    page = ctx.new_page()
+    sign_in(page, "sam")
+    page.click("#tabs a[data-screen=log]")
+    page.wait_for_selector("#filters")
+    page.select_option("#flt-site", SITE)
+    wait_until(page, f"document.querySelectorAll('#log-table tbody tr').length === {len(ids)}")
+    # summary: one count per reading, the chart drawn
+    assert f"{len(ids)} reading(s), 0 reviewed" in page.text_content("#summary")
+    assert page.locator("#summary svg.histogram rect.bar").count() >= 1
+    # sorting by load: the server's load_pct values in ascending, then descending order
+    loads = {}
+    for rid in ids:
+        status, r = service.call("GET", f"/api/v1/readings/{rid}")
+        loads[rid] = r["result"]["load_pct"]
+    page.click("#log-table th button[data-sort=load_pct]")
+    order = [int(x) for x in page.eval_on_selector_all("#log-table tbody tr", "rows => rows.map(r => r.dataset.id)")]
+    assert order == sorted(ids, key=lambda i: loads[i])
+    page.click("#log-table th button[data-sort=load_pct]")
+    order = [int(x) for x in page.eval_on_selector_all("#log-table tbody tr", "rows => rows.map(r => r.dataset.id)")]
+    assert order == sorted(ids, key=lambda i: -loads[i])
+    assert page.get_attribute("#log-table th:has(button[data-sort=load_pct])", "aria-sort") == "descending"
+    shot(page, "sup-01-day-log")
+
+    # CSV record with one click
+    with page.expect_download() as dl:
+        page.click("#csv")
+    text = open(dl.value.path(), encoding="utf-8").read()
+    rows = list(csv.DictReader(io.StringIO(text)))
+    assert sorted(int(r["reading_id"]) for r in rows) == sorted(ids)
+    assert {r["site"] for r in rows} == {SITE}
+    assert all(r["technician"] == "tess" for r in rows)
+    assert dl.value.suggested_filename.startswith("slipwise-record-")
+
+    # review: ask for a retake with a comment
+    target = ids[0]
+    page.click(f"#log-table tbody tr[data-id='{target}'] a")
+    page.wait_for_selector("#review-form")
+    page.click("#review-form input[value=retake]")
+    page.click("#review-submit")
+    page.wait_for_selector("#review-error:not(:empty)")  # the server asks for the comment
+    assert "comment" in page.text_content("#review-error")
+    page.fill("#review-comment", "Tachometer reading looks high; take it on the shaft end.")
+    page.click("#review-submit")
+    page.wait_for_selector("#review-state .state.retake")
+    shot(page, "sup-02-detail-review")
+    status, r = service.call("GET", f"/api/v1/readings/{target}")
+    assert r["review"]["decision"] == "retake" and r["review"]["reviewer"] == "sam"
+    assert r["review"]["comment"].startswith("Tachometer reading looks high")
+
+    # the technician sees it on the tablet
+    tpage = new_context(TABLET).new_page()
+    sign_in(tpage, "tess")
+    tpage.goto("/#/mine")
+    tpage.wait_for_selector("#mine-list")
+    item = tpage.locator(f"#mine-list li[data-id='{target}']")
+    assert item.locator("[data-review]").get_attribute("data-review") == "retake"
+    assert "shaft end" in item.text_content()
+    shot(tpage, "tech-04-my-day")
