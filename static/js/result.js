@@ -37,7 +37,8 @@ export function verdict(result) {
 
 /** The load bar: zones underloaded / normal / overloaded, the band, the estimate. */
 export function loadBar({ load, low, high, serviceFactor = 1, label }) {
-  const W = 640, H = 92, x0 = 16, x1 = W - 16;
+  // about one user unit per CSS pixel, so the labels stay readable from a phone to a desktop
+  const W = Math.round(Math.min(Math.max(window.innerWidth - 90, 300), 820)), H = 92, x0 = 16, x1 = W - 16;
   const top = Math.max(150, (high ?? 0) + 10, 100 * serviceFactor + 20);
   const X = (p) => x0 + ((x1 - x0) * Math.min(Math.max(p, 0), top)) / top;
   const under = LIMITS.underloaded_pct, over = LIMITS.overloaded_pct;
@@ -47,7 +48,8 @@ export function loadBar({ load, low, high, serviceFactor = 1, label }) {
     s("rect", { class: "z-ok", x: X(under), y: 24, width: X(over) - X(under), height: 30 }),
     s("rect", { class: "z-over", x: X(over), y: 24, width: X(top) - X(over), height: 30 }),
   ];
-  for (const [p, text] of [[0, "0"], [under, `${under} % under`], [over, `${over} % rated`]]) {
+  const narrow = W < 420;
+  for (const [p, text] of [[0, "0"], [under, narrow ? `${under}` : `${under} % under`], [over, narrow ? `${over} rated` : `${over} % rated`]]) {
     parts.push(s("line", { class: "tick", x1: X(p), x2: X(p), y1: 20, y2: 58 }));
     parts.push(s("text", { x: X(p), y: 74, "text-anchor": p === 0 ? "start" : "middle" }, text));
   }
@@ -101,7 +103,7 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
       fact("Slip", `${fmt(result.slip_pct, 2)} %`, `${fmt(result.slip_rpm, 0)} rpm`),
       fact("Breakdown margin", result.breakdown_margin == null ? "–" : `× ${fmt(result.breakdown_margin, 2)}`, "breakdown ÷ present torque"),
       fact("Efficiency", `${fmt(result.efficiency_pct, 1)} %`, result.efficiency_low_pct != null ? `${fmt(result.efficiency_low_pct, 1)}–${fmt(result.efficiency_high_pct, 1)} %` : ""),
-      fact("Efficiency class", result.efficiency_class || "–", "rated"))));
+      fact("Efficiency class", result.efficiency_class || "–", result.efficiency_class ? "at the rated efficiency" : "no rated efficiency given"))));
   if (flags.has("readings_inconsistent")) {
     const f = (result.findings || []).find((x) => x.flag === "readings_inconsistent");
     out.push(h("section", { class: "panel retake", "aria-labelledby": "retake-h" },

@@ -111,11 +111,11 @@ export async function renderMotors(el, _arg, seq) {
   siteSel.addEventListener("change", () => { localStorage.setItem(SITE_KEY, siteSel.value); draw(); });
   search.addEventListener("input", draw);
   clear(el,
-    h("h1", { tabindex: "-1" }, "Motors"),
+    h("div", { class: "screen-head" }, h("h1", { tabindex: "-1" }, "Motors"),
+      h("a", { class: "btn", href: "#/motor/new" }, "Register a motor")),
     h("div", { class: "panel filters" },
       h("div", { class: "field" }, h("label", { for: "site" }, "Site"), siteSel),
-      h("div", { class: "field" }, h("label", { for: "tag-search" }, "Find by tag"), search),
-      h("div", { class: "field" }, h("a", { class: "btn", href: "#/motor/new" }, "Register a motor"))),
+      h("div", { class: "field" }, h("label", { for: "tag-search" }, "Find by tag"), search)),
     count, list);
   draw();
 }

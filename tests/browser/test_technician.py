@@ -64,3 +64,147 @@ def test_phone_width_has_no_sideways_scroll(new_context, service):
     sign_in(page, "tess")
     assert page.evaluate("document.documentElement.scrollWidth") <= PHONE["width"]
     shot(page, "phone-01-motors")
+
+
+# 1470 rpm says about 67 % load by slip, but 16 A on a 28.5 A motor says far less: the engine's
+# methods disagree beyond their bands (readings_inconsistent), so the page asks to take them again
+CONTRADICTING = {"frequency_hz": "50", "speed_rpm": "1470", "current_l1_a": "16", "current_l2_a": "16",
+                 "current_l3_a": "16.5", "voltage_l12_v": "400", "voltage_l23_v": "401", "voltage_l31_v": "399"}
+
+
+def test_take_again_when_readings_contradict(new_context, service):
+    motor = service.motor("P-105 contradicting pump")
+    page = new_context(TABLET).new_page()
+    sign_in(page, "tess")
+    page.goto(f"/#/motor/{motor['id']}")
+    page.wait_for_selector("#reading-form")
+    fill_reading(page, CONTRADICTING)
+    page.click("#submit-reading")
+    page.wait_for_selector("#take-again")
+    first = service.readings_of(motor["id"])
+    assert len(first) == 1 and "readings_inconsistent" in first[0]["result"]["flags"]
+    assert page.locator(".finding[data-flag=readings_inconsistent] .caution").count() == 1
+    shot(page, "tech-05-take-again")
+    page.click("#take-again")
+    page.wait_for_selector("#reading-form")
+    assert page.input_value("#rd-speed_rpm") == "1470"  # the previous values, to correct what was misread
+    page.fill("#rd-speed_rpm", "1481")
+    page.click("#submit-reading")
+    page.wait_for_selector("#load-value")
+    both = service.readings_of(motor["id"])
+    assert len(both) == 2
+    assert both[1]["supersedes"] == first[0]["id"] and both[1]["inputs"]["speed_rpm"] == 1481
+
+
+def test_register_motor_from_nameplate(new_context, service):
+    ctx = new_context(TABLET)
+    page = ctx.new_page()
+    sign_in(page, "tess")
+    page.goto("/#/motor/new")
+    page.wait_for_selector("#np-rated_voltage_v")
+    # every field has a label and a unit beside it; blanks are explained
+    unlabeled = page.evaluate("[...document.querySelectorAll('#main input, #main select')]"
+                              ".filter(e => e.type !== 'radio' && !e.hidden && e.labels.length === 0).map(e => e.id)")
+    assert unlabeled == []
+    assert "inferred from rated speed" in page.text_content("#np-poles-hint")
+    page.fill("#t-site", "Harbour pumping station")
+    page.fill("#t-tag", "P-110 new pump")
+    page.check("input[name=power-unit][value=hp]")
+    for name, value in {"rated_power_hp": "20", "rated_voltage_v": "460", "rated_current_a": "25",
+                        "rated_frequency_hz": "60", "rated_speed_rpm": "1760"}.items():
+        page.fill(f"#np-{name}", value)
+    page.select_option("#np-driven_load", "variable_torque")
+    shot(page, "tech-06-register-motor")
+    page.click("form button[type=submit]")
+    # POST /motors is for supervisors in the service: the technician sees the server's own reason
+    page.wait_for_selector("#motor-error:not(:empty)")
+    assert "supervisor" in page.text_content("#motor-error")
+    # a supervisor on the same tablet registers it
+    sup = new_context(TABLET).new_page()
+    sign_in(sup, "sam")
+    sup.goto("/#/motor/new")
+    sup.wait_for_selector("#np-rated_voltage_v")
+    sup.fill("#t-site", "Harbour pumping station")
+    sup.fill("#t-tag", "P-110 new pump")
+    sup.check("input[name=power-unit][value=hp]")
+    for name, value in {"rated_power_hp": "20", "rated_voltage_v": "460", "rated_current_a": "25",
+                        "rated_frequency_hz": "60", "rated_speed_rpm": "1760"}.items():
+        sup.fill(f"#np-{name}", value)
+    sup.select_option("#np-driven_load", "variable_torque")
+    sup.click("form button[type=submit]")
+    sup.wait_for_selector("#reading-form")
+    status, data = service.call("GET", "/api/v1/motors")
+    made = [m for m in data["motors"] if m["tag"] == "P-110 new pump"]
+    assert len(made) == 1 and made[0]["rated_power_hp"] == 20 and made[0]["rated_power_kw"] is None
+    assert made[0]["driven_load"] == "variable_torque"
+
+
+def test_keyboard_only_reading(new_context, service):
+    motor = service.motor("P-120 keyboard pump")
+    page = new_context(TABLET).new_page()
+    page.goto("/")
+    page.wait_for_selector("#login-user")
+    assert page.evaluate("document.activeElement.id") == "login-user"
+    page.keyboard.type("tess")
+    page.keyboard.press("Tab")
+    page.keyboard.type("tablet-pass-1")
+    page.keyboard.press("Enter")
+    page.wait_for_selector("#tag-search")
+    page.focus("#tag-search")
+    page.keyboard.type("P-120")
+    page.keyboard.press("Tab")  # the first (only) motor in the list
+    assert page.evaluate("document.activeElement.dataset.id") == str(motor["id"])
+    page.keyboard.press("Enter")
+    page.wait_for_selector("#reading-form")
+    assert page.evaluate("document.activeElement.id") == "rd-frequency_hz"
+    for value in ("50", "1479", "20", "20.2", "19.9", "400", "401", "399"):
+        page.keyboard.type(value)
+        page.keyboard.press("Tab")
+    page.keyboard.press("Enter")  # submits the form
+    page.wait_for_selector("#load-value")
+    stored = service.readings_of(motor["id"])
+    assert len(stored) == 1 and stored[0]["inputs"]["voltage_l31_v"] == 399
+
+
+def test_session_survives_closing_the_tablet(browser, new_context, service):
+    ctx = new_context(TABLET)
+    page = ctx.new_page()
+    sign_in(page, "tess")
+    state = ctx.storage_state()
+    ctx.close()
+    again = new_context(TABLET, storage_state=state).new_page()
+    again.goto("/")
+    again.wait_for_selector("html[data-ready='1']")
+    assert again.locator("#login-user").count() == 0
+    assert "Tess Okafor" in again.text_content("#who")
+
+
+def test_dim_room_palette(new_context, service):
+    page = new_context(TABLET, color_scheme="dark").new_page()
+    sign_in(page, "tess")
+    bg = page.evaluate("getComputedStyle(document.body).backgroundColor")
+    assert bg != "rgb(238, 242, 241)"  # the dim palette, not the bright one
+    assert page.get_attribute("#theme", "aria-pressed") == "true"
+    shot(page, "dim-01-motors")
+    page.click("#theme")
+    assert page.evaluate("document.documentElement.dataset.theme") == "bright"
+
+
+def test_phone_width_reading_and_result(new_context, service):
+    motor = service.motor("P-302 phone pump")
+    page = new_context(PHONE).new_page()
+    sign_in(page, "tess")
+    page.goto(f"/#/motor/{motor['id']}")
+    page.wait_for_selector("#reading-form")
+    fill_reading(page, GOOD)
+    assert page.evaluate("document.documentElement.scrollWidth") <= PHONE["width"]
+    # touch targets for gloves: inputs and the main button at least 48 px high
+    heights = page.evaluate("[...document.querySelectorAll('#reading-form input, #submit-reading')]"
+                            ".filter(e => e.offsetParent).map(e => e.getBoundingClientRect().height)")
+    assert min(heights) >= 48
+    shot(page, "phone-02-reading-form")
+    page.click("#submit-reading")
+    page.wait_for_selector("#load-value")
+    wait_until(page, "document.querySelector('img.picture').complete")
+    assert page.evaluate("document.documentElement.scrollWidth") <= PHONE["width"]
+    shot(page, "phone-03-result")
