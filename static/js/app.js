@@ -57,7 +57,7 @@ export async function sync(reason) {
   if (!ctx.user) return null;
   const c = await outbox.counts();
   if (!c.waiting) return null;
-  const summary = await outbox.replay(sendReading);
+  const summary = await outbox.replay(sendReading, ctx.user.username);
   if (summary.sent || summary.rejected) setReachable(true);
   if (summary.stopped === "network") {
     setReachable(false);

@@ -151,10 +151,10 @@ export async function cachePut(key, value) {
   await tx("cache", "readwrite", (st) => request(st.put({ key, value, saved_at: new Date().toISOString() })));
 }
 
-/** A new outbox entry for a reading body (which already holds its client_id). */
-export function newEntry(body, motor) {
+/** A new outbox entry for a reading body (which already holds its client_id), entered by `username`. */
+export function newEntry(body, motor, username) {
   return {
-    v: ENTRY_VERSION, client_id: body.client_id, motor_id: body.motor_id, tag: motor.tag, site: motor.site,
+    v: ENTRY_VERSION, client_id: body.client_id, motor_id: body.motor_id, tag: motor.tag, site: motor.site, username,
     body, state: "waiting", error: null, created_at: new Date().toISOString(), attempts: 0, last_try_at: null,
     nameplate: motor,
   };
@@ -208,14 +208,18 @@ export function sendNow(entry, send) {
   });
 }
 
-/** Send every waiting entry, oldest first; stops at the first network, server or login problem. */
-export function replay(send) {
-  return exclusive(() => doReplay(send));
+/**
+ * Send every waiting entry of `username`, oldest first; stops at the first network, server or login
+ * problem. Another person's entries wait for that person's session (the server records who sent it).
+ * Schema-1 entries carry no user and go with whoever signs in first.
+ */
+export function replay(send, username) {
+  return exclusive(() => doReplay(send, username));
 }
 
-async function doReplay(send) {
+async function doReplay(send, username) {
   const summary = { sent: 0, rejected: 0, stopped: null, readings: [] };
-  const entries = (await all()).filter((e) => e.state === "waiting");
+  const entries = (await all()).filter((e) => e.state === "waiting" && (!e.username || e.username === username));
   for (const e of entries) {
     const r = await sendOne(e, send);
     if (r.outcome === "sent") {

@@ -266,7 +266,7 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
     submit.disabled = true;
     const body = { client_id: uuid(), motor_id: motor.id, taken_at: localIso(), ...out };
     if (opts.supersedes) body.supersedes = opts.supersedes;
-    const entry = outbox.newEntry(body, motor);
+    const entry = outbox.newEntry(body, motor, ctx.user.username);
     // into the outbox first: from here on the reading survives a closed tab or a dead network
     if (opts.correcting) {
       entry.corrects = opts.correcting.client_id;
@@ -311,6 +311,7 @@ export async function renderPending(el, clientId, seq) {
       return;
     }
     entry = (await outbox.get(clientId)) || entry;
+    if (r.outcome === "waiting") lastReason.set(entry.client_id, r.reason);
     if (r.outcome === "waiting" && r.reason === "network") {
       setReachable(false);
       askForBackgroundSync();
@@ -321,12 +322,22 @@ export async function renderPending(el, clientId, seq) {
       h("strong", { id: "reject-message" }, entry.error.message), " ",
       h("a", { class: "btn", href: `#/outbox/${entry.client_id}/fix` }, "Correct it"));
     status.classList.add("retake");
-  } else {
+  } else if (entry.username && ctx.user && entry.username !== ctx.user.username) {
     clear(status, h("span", { class: "state waiting" }, "kept on this tablet"),
-      " No answer from the server. The reading is in the outbox and is sent by itself when the network returns.",
+      ` Entered by ${entry.username}; it is sent when ${entry.username} signs in on this device.`);
+  } else {
+    const why = entryWhy(entry);
+    clear(status, h("span", { class: "state waiting" }, "kept on this tablet"), " ", why,
       " ", h("a", { class: "btn btn-quiet", href: "#/motors" }, "Next motor"));
   }
 }
+
+function entryWhy(entry) {
+  if (lastReason.get(entry.client_id) === "login") return "The session has ended: sign in again and the outbox sends it.";
+  if (lastReason.get(entry.client_id) === "server") return "The server could not take it just now; it is sent again automatically.";
+  return "No answer from the server. The reading is in the outbox and is sent by itself when the network returns.";
+}
+const lastReason = new Map();
 
 // --- Outbox ----------------------------------------------------------------------------------------------
 export async function renderOutbox(el) {
@@ -350,7 +361,8 @@ export async function renderOutbox(el) {
             .filter(([k]) => e.body[k] != null).map(([k, u]) => `${e.body[k]} ${u}`).join(" · ")),
           e.state === "rejected"
             ? h("p", {}, h("span", { class: "state rejected" }, "rejected"), " ", h("span", { class: "reject-message" }, e.error.message))
-            : h("p", {}, h("span", { class: "state waiting" }, "waiting"), e.attempts ? ` · ${e.attempts} attempt(s)` : "")),
+            : h("p", {}, h("span", { class: "state waiting" }, "waiting"), e.attempts ? ` · ${e.attempts} attempt(s)` : "",
+              e.username && e.username !== ctx.user.username ? ` · entered by ${e.username}, sent when they sign in` : "")),
         h("a", { class: "btn", href: `#/pending/${e.client_id}` }, "Provisional result"),
         e.state === "rejected" ? h("a", { class: "btn btn-bad", href: `#/outbox/${e.client_id}/fix` }, "Correct") : null)))
       : h("p", { class: "panel", id: "outbox-empty" }, "The outbox is empty: the server has every reading."));

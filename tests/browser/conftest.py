@@ -164,3 +164,27 @@ def wait_until(page, expression: str, timeout_s: float = 15.0):
         if time.monotonic() > end:
             raise AssertionError(f"timed out waiting for: {expression}")
         time.sleep(0.05)
+
+
+CONTRAST_JS = """(selectors) => {
+  // WCAG 2.x relative luminance and contrast ratio (w3.org/TR/WCAG21, "contrast ratio" definition)
+  const rgb = (c) => (c.match(/[\\d.]+/g) || []).map(Number);
+  const lum = ([r, g, b]) => { const f = (v) => { v /= 255; return v <= 0.03928 ? v / 12.92 : ((v + 0.055) / 1.055) ** 2.4; };
+                                return 0.2126 * f(r) + 0.7152 * f(g) + 0.0722 * f(b); };
+  const background = (el) => { for (let e = el; e; e = e.parentElement) { const c = rgb(getComputedStyle(e).backgroundColor);
+                                 if (c.length === 3 || (c.length === 4 && c[3] > 0.5)) return c.slice(0, 3); }
+                               return rgb(getComputedStyle(document.documentElement).backgroundColor).slice(0, 3); };
+  const out = {};
+  for (const sel of selectors) {
+    const ratios = [...document.querySelectorAll(sel)].filter((e) => e.offsetParent && e.textContent.trim()).map((e) => {
+      const a = lum(rgb(getComputedStyle(e).color)), b = lum(background(e));
+      return (Math.max(a, b) + 0.05) / (Math.min(a, b) + 0.05); });
+    out[sel] = ratios.length ? Math.min(...ratios) : null;
+  }
+  return out;
+}"""
+
+
+def contrast(page, selectors):
+    """Lowest WCAG contrast ratio of the visible elements matching each selector."""
+    return page.evaluate(CONTRAST_JS, list(selectors))

@@ -153,3 +153,38 @@ def test_outbox_from_an_older_page_version_is_migrated(new_context, service):
     page.goto("/#/outbox")
     page.wait_for_selector("#outbox-list li[data-state=rejected]")
     assert refused["message"] in page.text_content("#outbox-list")
+
+
+def test_outbox_entries_wait_for_the_person_who_entered_them(new_context, service):
+    """A shared tablet: Tess's unsent reading is never sent under Sam's session."""
+    motor = service.motor("P-204 shared tablet pump")
+    ctx = new_context(TABLET)
+    page = ctx.new_page()
+    page.on("dialog", lambda d: d.accept())  # "still in the outbox... sign out?"
+    sign_in(page, "tess")
+    page.wait_for_selector(f"#motor-list button[data-id='{motor['id']}']")  # saved for offline use
+    ctx.set_offline(True)
+    enter(page, motor["id"], READINGS[0])
+    page.route("**/api/v1/readings", lambda route: route.abort("connectionrefused"))  # the server stays out of reach
+    ctx.set_offline(False)
+    page.click("#logout")
+    page.wait_for_selector("#login-user")
+    page.unroute("**/api/v1/readings")
+    page.fill("#login-user", "sam")
+    page.fill("#login-pass", "desk-pass-22")
+    page.click("button[type=submit]")
+    page.wait_for_selector("#tabs:not([hidden])")
+    page.wait_for_timeout(500)
+    assert service.readings_of(motor["id"]) == []
+    assert waiting(page) == 1
+    page.goto("/#/outbox")
+    page.wait_for_selector("#outbox-list")
+    assert "entered by tess" in page.text_content("#outbox-list")
+    page.click("#logout")
+    page.wait_for_selector("#login-user")
+    page.fill("#login-user", "tess")
+    page.fill("#login-pass", "tablet-pass-1")
+    page.click("button[type=submit]")
+    wait_until(page, "document.querySelector('#outbox-count').dataset.waiting === '0'")
+    stored = service.readings_of(motor["id"])
+    assert len(stored) == 1 and stored[0]["technician"] == "tess"
