@@ -2,7 +2,10 @@
 
 from __future__ import annotations
 
+import fcntl
+import os
 import re
+import threading
 from contextlib import contextmanager
 from pathlib import Path
 from typing import Iterator
@@ -50,9 +53,13 @@ class Database:
         if schema is not None and not _SCHEMA_NAME.match(schema):
             raise SchemaError("database schema name must be lower-case letters, digits and _")
         self.schema = schema
+        self._write_lock_path: str | None = None
+        self._thread_lock = threading.Lock()
+        self._lock_fd: int | None = None
         if self.dialect == "sqlite":
             if parsed.database and parsed.database != ":memory:":
                 Path(parsed.database).parent.mkdir(parents=True, exist_ok=True)
+                self._write_lock_path = parsed.database + ".writelock"
             self.engine = create_engine(self.url, pool_size=pool_size, max_overflow=8,
                                         connect_args={"timeout": 30, "check_same_thread": False})
             event.listen(self.engine, "connect", _sqlite_on_connect)
@@ -72,10 +79,31 @@ class Database:
 
     @contextmanager
     def write(self) -> Iterator[Connection]:
-        with self.engine.connect() as conn:
-            conn = conn.execution_options(slipwise_write=True)
-            with conn.begin():
-                yield conn
+        with self._sqlite_writer():
+            with self.engine.connect() as conn:
+                conn = conn.execution_options(slipwise_write=True)
+                with conn.begin():
+                    yield conn
+
+    @contextmanager
+    def _sqlite_writer(self):
+        """One SQLite writer at a time across threads and processes, queued by the kernel.
+
+        SQLite's own busy handler polls with sleeps of up to 100 ms, which under
+        concurrent submissions from several server processes gives long tails;
+        a blocking flock wakes the next writer as soon as the lock is free.
+        """
+        if self._write_lock_path is None:
+            yield
+            return
+        with self._thread_lock:
+            if self._lock_fd is None:
+                self._lock_fd = os.open(self._write_lock_path, os.O_RDWR | os.O_CREAT, 0o600)
+            fcntl.flock(self._lock_fd, fcntl.LOCK_EX)
+            try:
+                yield
+            finally:
+                fcntl.flock(self._lock_fd, fcntl.LOCK_UN)
 
     # --- schema ------------------------------------------------------------
     def version(self) -> int:
@@ -105,6 +133,9 @@ class Database:
 
     def dispose(self) -> None:
         self.engine.dispose()
+        if self._lock_fd is not None:
+            os.close(self._lock_fd)
+            self._lock_fd = None
 
 
 def _sqlite_on_connect(dbapi_conn, _record) -> None:

@@ -58,46 +58,55 @@ def neutralise(value: Any) -> Any:
     return value
 
 
-def _result_cell(name: str, value: Any) -> Any:
-    if name == "flags":
-        return " ".join(value or [])
-    if name == "findings":
-        return " | ".join(f.get("text", "") for f in (value or []))
-    return value
+_RESULT_AT = EXPORT_COLUMNS.index(RESULT_COLUMNS[0])
+_FLAGS_AT = EXPORT_COLUMNS.index("flags")
+_FINDINGS_AT = EXPORT_COLUMNS.index("findings")
+_ENGINE_AT = EXPORT_COLUMNS.index("engine_version")
+# cells that can hold free text (the others are numbers, validated codes, ids or ISO times)
+_TEXT_AT = tuple(EXPORT_COLUMNS.index(c) for c in (
+    "site", "tag", "location", "description", "efficiency_class", "supply_zone", "flags", "findings", "error",
+    "operating_side", "error_field", "cautions", "technician", "technician_name", "review_comment", "reviewer")
+    if c in EXPORT_COLUMNS)
 
 
 def export_row(row: Mapping[str, Any]) -> list[Any]:
-    inputs = json.loads(row["inputs"])
-    result = json.loads(row["result"])
-    findings = result.get("findings") or []
-    cautions = list(dict.fromkeys(f["caution"] for f in findings if f.get("caution")))
+    """One CSV row; ``row`` is a mapping from the store's export query."""
+    loads = json.loads
+    iget = loads(row["inputs"]).get
+    result = loads(row["result"])
+    rget = result.get
     reviewed = row["reviewed_at"]
+    findings = rget("findings") or ()
     cells = [row["id"], row["client_id"], row["site"], row["tag"], row["location"], row["description"],
-             row["motor_revision"]]
-    cells += [row[f] for f in _NAMEPLATE]
-    cells += [inputs.get(f) for f in _READING_NUMBERS]
-    cells.append(row["taken_at"])
-    cells += [_result_cell(c, result.get(c)) for c in RESULT_COLUMNS]
-    cells += [" | ".join(cautions), row["technician"], row["technician_name"], row["received_at"].isoformat(),
-              row["supersedes_id"], row["superseded_by"], row["decision"], row["comment"], row["reviewer"],
-              reviewed.isoformat() if reviewed else None]
-    # the stored engine version is the one that interpreted this row
-    cells[EXPORT_COLUMNS.index("engine_version")] = row["engine_version"]
-    return [neutralise(c) for c in cells]
+             row["motor_revision"], *[row[f] for f in _NAMEPLATE], *[iget(f) for f in _READING_NUMBERS],
+             row["taken_at"], *[rget(c) for c in RESULT_COLUMNS],
+             " | ".join(dict.fromkeys(f["caution"] for f in findings if f.get("caution"))), row["technician"],
+             row["technician_name"], row["received_at"].isoformat(), row["supersedes_id"], row["superseded_by"],
+             row["decision"], row["comment"], row["reviewer"], reviewed.isoformat() if reviewed else None]
+    cells[_FLAGS_AT] = " ".join(cells[_FLAGS_AT] or ())
+    cells[_FINDINGS_AT] = " | ".join(f.get("text", "") for f in findings)
+    cells[_ENGINE_AT] = row["engine_version"]  # the version that interpreted this row
+    for i in _TEXT_AT:
+        v = cells[i]
+        if v and v.__class__ is str and v[0] in _FORMULA_START:
+            cells[i] = "'" + v
+    return cells
 
 
 def csv_chunks(rows: Iterable[Mapping[str, Any]]) -> Iterator[str]:
     buf = io.StringIO()
     writer = csv.writer(buf, lineterminator="\r\n")
     writer.writerow(EXPORT_COLUMNS)
-    n = 0
+    batch = []
     for row in rows:
-        writer.writerow(export_row(row))
-        n += 1
-        if n % _ROWS_PER_CHUNK == 0:
+        batch.append(export_row(row))
+        if len(batch) == _ROWS_PER_CHUNK:
+            writer.writerows(batch)
+            batch = []
             yield buf.getvalue()
             buf.seek(0)
             buf.truncate()
+    writer.writerows(batch)
     yield buf.getvalue()
 
 
