@@ -16,7 +16,12 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from server.cli_analyze import add_analyze_parser
+# One BLAS/OpenMP thread per server thread: the engine's small matrices gain nothing from a pool,
+# and 2 workers x 4 threads x a pool per core oversubscribe the CPU. Set before numpy loads.
+for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
+    os.environ.setdefault(_var, "1")
+
+from server.cli_analyze import add_analyze_parser  # noqa: E402
 
 
 class CliError(Exception):
