@@ -61,6 +61,7 @@ Thresholds.from_mapping = staticmethod(thresholds_from_mapping)  # type: ignore[
 
 # --------------------------------------------------------------------------- parsing
 _CONTROL = "".join(chr(c) for c in range(32)) + "\x7f"
+_SMALL = 64          # row count below which per-value Python beats pandas' set-up cost
 _NAMEPLATE_NUMBER_NAMES = tuple(f.name for f in C.NAMEPLATE_NUMBERS)
 _CHOICE_NAMES = tuple(f.name for f in C.NAMEPLATE_CHOICES)
 
@@ -120,8 +121,14 @@ def _to_float(raw, n: int, name: str, errors: _Errors):
     if arr.dtype.kind == "b":
         errors.add(np.ones(n, dtype=bool), name, lambda i: f"{name}: {_show(arr[i])} is not a number")
         return np.full(n, np.nan)
-    # text or mixed: decide per distinct value (few of them in practice)
-    codes, uniques = pd.factorize(pd.Series(arr, dtype=object), use_na_sentinel=True)
+    # text or mixed: decide per distinct value (few of them in practice); a few rows
+    # (one API record) go straight through without pandas
+    if n <= _SMALL:
+        codes, uniques = np.arange(n), list(arr)
+        codes = np.array([-1 if v is None or (isinstance(v, float) and math.isnan(v)) else i
+                          for i, v in enumerate(arr)], dtype=np.int64)
+    else:
+        codes, uniques = pd.factorize(pd.Series(arr, dtype=object), use_na_sentinel=True)
     values = np.full(len(uniques), np.nan)
     bad_u = np.zeros(len(uniques), dtype=bool)
     for k, v in enumerate(uniques):
@@ -166,6 +173,9 @@ def _parse_text(raw, n: int):
     """Stripped text per row ("" for blank), decided per distinct value."""
     if raw is None:
         return np.full(n, "", dtype=object)
+    if n <= _SMALL:
+        return np.array(["" if v is None or (isinstance(v, float) and math.isnan(v)) else str(v).strip()
+                         for v in np.asarray(raw, dtype=object)], dtype=object)
     codes, uniques = pd.factorize(pd.Series(np.asarray(raw, dtype=object), dtype=object), use_na_sentinel=True)
     clean = np.array(["" if (isinstance(v, float) and math.isnan(v)) else str(v).strip() for v in uniques] + [""],
                      dtype=object)
@@ -194,6 +204,8 @@ def _nanmean_present(arrays):
 
 def _group_nameplates(cols: Mapping[str, Any], n: int):
     """Rows sharing one nameplate: (first row of each, row -> nameplate index)."""
+    if n == 1:
+        return np.zeros(1, dtype=np.int64), np.zeros(1, dtype=np.int64)
     h = np.zeros(n, dtype=np.uint64)
     mult = np.uint64(0x100000001B3)
     with np.errstate(over="ignore"):
@@ -318,6 +330,30 @@ def _parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[_Parsed, _Errors
         np.nan_to_num(p["rated_kw"], nan=1.0), np.nan_to_num(poles, nan=4.0), np.nan_to_num(f_r, nan=50.0),
         p["rated_efficiency_pct"])).astype(object)
     return p, errors
+
+
+_plate_cache: "OrderedDict[tuple, tuple]" = OrderedDict()
+_PLATE_CACHE_LIMIT = 4096
+
+
+def _nameplates(plate_cols: Mapping[str, Any], n: int) -> tuple[_Parsed, _Errors]:
+    """Parsed and derived nameplates; a single nameplate (the service's case) is cached."""
+    key = None
+    if n == 1:
+        key = tuple(sorted((k, type(v[0]).__name__, repr(v[0])) for k, v in plate_cols.items()))
+        with _cache_lock:
+            hit = _plate_cache.get(key)
+            if hit is not None:
+                _plate_cache.move_to_end(key)
+                return hit
+    plates, errors = _parse_nameplates(plate_cols, n)
+    _derive_nameplates(plates, errors.ok)
+    if key is not None:
+        with _cache_lock:
+            _plate_cache[key] = (plates, errors)
+            if len(_plate_cache) > _PLATE_CACHE_LIMIT:
+                _plate_cache.popitem(last=False)
+    return plates, errors
 
 
 def _derive_nameplates(p: _Parsed, ok: np.ndarray) -> None:
@@ -464,8 +500,7 @@ def interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None = N
     n = _column_length(cols)
     first, inverse = _group_nameplates(cols, n)
     plate_cols = {k: _column(cols, k, n)[first] for k in C.NAMEPLATE_FIELDS if cols.get(k) is not None}
-    plates, plate_errors = _parse_nameplates(plate_cols, len(first))
-    _derive_nameplates(plates, plate_errors.ok)
+    plates, plate_errors = _nameplates(plate_cols, len(first))
 
     errors = plate_errors.take(inverse)
     per_row = ("tag", "rated_voltage_v", "rated_current_a", "rated_frequency_hz", "supply", "poles_used",
@@ -748,10 +783,9 @@ def interpret_one(record: Mapping[str, Any], thresholds: Thresholds | None = Non
 
 def _single_plate(record: Mapping[str, Any]) -> _Parsed:
     cols = _records_to_columns([record])
-    plates, errors = _parse_nameplates({k: _column(cols, k, 1) for k in C.NAMEPLATE_FIELDS if k in cols}, 1)
+    plates, errors = _nameplates({k: _column(cols, k, 1) for k in C.NAMEPLATE_FIELDS if k in cols}, 1)
     if not errors.ok[0]:
         raise InputError(errors.field[0], errors.message[0])
-    _derive_nameplates(plates, errors.ok)
     return plates
 
 

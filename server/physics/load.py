@@ -305,16 +305,12 @@ def fuse(estimates):
     fused = Estimate(np.clip(value, 0, None), np.clip(value - half_lo, 0, None), value + half_hi)
 
     m = v.shape[0]
-    disagree = np.zeros((m, m) + v.shape[1:], dtype=bool)
-    for a in range(m):
-        for b in range(m):
-            if a == b:
-                continue
-            # a above b: a's low side against b's high side
-            gap = v[a] - v[b]
-            allowed = np.sqrt((v[a] - lo[a]) ** 2 + (hi[b] - v[b]) ** 2)
-            with np.errstate(invalid="ignore"):
-                disagree[a, b] = ok[a] & ok[b] & (gap > allowed)
+    # pair (a, b) with a above b: a's low side against b's high side, both directions at once
+    gap = v[:, None] - v[None, :]
+    allowed = np.sqrt((v - lo)[:, None] ** 2 + (hi - v)[None, :] ** 2)
+    both = ok[:, None] & ok[None, :]
+    with np.errstate(invalid="ignore"):
+        disagree = both & (gap > allowed)
     pair = disagree | np.swapaxes(disagree, 0, 1)
     consistent = ~pair.any(axis=(0, 1))
     n_ok = ok.sum(axis=0)
