@@ -8,7 +8,7 @@ Column order (stable; new columns are only ever appended):
    (``nameplate_poles``, ``nameplate_breakdown_torque_pct``)
 3. the reading fields of the contract, in contract order (``taken_at`` last)
 4. every result column of the contract, in contract order; ``flags`` is the
-   flag codes separated by spaces, ``findings`` the finding texts separated by
+   flag codes separated by ``;`` (as in ``slipwise analyze``), ``findings`` the finding texts separated by
    `` | ``
 5. ``cautions, technician, technician_name, received_at, supersedes,
    superseded_by, review_decision, review_comment, reviewer, reviewed_at``
@@ -83,7 +83,7 @@ def export_row(row: Mapping[str, Any]) -> list[Any]:
              " | ".join(dict.fromkeys(f["caution"] for f in findings if f.get("caution"))), row["technician"],
              row["technician_name"], row["received_at"].isoformat(), row["supersedes_id"], row["superseded_by"],
              row["decision"], row["comment"], row["reviewer"], reviewed.isoformat() if reviewed else None]
-    cells[_FLAGS_AT] = " ".join(cells[_FLAGS_AT] or ())
+    cells[_FLAGS_AT] = ";".join(cells[_FLAGS_AT] or ())
     cells[_FINDINGS_AT] = " | ".join(f.get("text", "") for f in findings)
     cells[_ENGINE_AT] = row["engine_version"]  # the version that interpreted this row
     for i in _TEXT_AT:
