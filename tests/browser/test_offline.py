@@ -192,3 +192,43 @@ def test_outbox_entries_wait_for_the_person_who_entered_them(new_context, servic
     wait_until(page, "document.querySelector('#outbox-count').dataset.waiting === '0'")
     stored = service.readings_of(motor["id"])
     assert len(stored) == 1 and stored[0]["technician"] == "tess"
+
+
+def test_new_page_version_keeps_the_outbox(new_context, service, tmp_path):
+    """A new service worker VERSION replaces the page's cache; the unsent readings stay."""
+    import shutil
+    from pathlib import Path
+
+    motor = service.motor("P-205 upgrade pump")
+    copy = tmp_path / "static"
+    shutil.copytree(Path(service.app.config["STATIC_DIR"]), copy)
+    old_dir = service.app.config["STATIC_DIR"]
+    service.app.config["STATIC_DIR"] = str(copy)
+    try:
+        ctx = new_context(TABLET)
+        page = ctx.new_page()
+        sign_in(page, "tess")
+        wait_for_worker(page)
+        page.wait_for_selector(f"#motor-list button[data-id='{motor['id']}']")
+        ctx.set_offline(True)
+        enter(page, motor["id"], READINGS[1])
+        before = page.evaluate("caches.keys()")
+        sw = copy / "sw.js"
+        text = sw.read_text(encoding="utf-8")
+        assert 'const VERSION = "' in text
+        sw.write_text(text.replace('const VERSION = "', 'const VERSION = "next-', 1), encoding="utf-8")
+        page.route("**/api/v1/readings", lambda route: route.abort("failed"))  # keep it unsent meanwhile
+        ctx.set_offline(False)
+        page.reload()  # the browser looks for a new worker on navigation
+        page.wait_for_selector("html[data-ready='1']")
+        wait_until(page, "caches.keys().then(k => k.some(n => n.includes('next-')) && k.length === 1)", 20)
+        after = page.evaluate("caches.keys()")
+        assert before != after and len(after) == 1
+        assert len(outbox_entries(page)) == 1  # the outbox is not the page cache: untouched
+        page.unroute("**/api/v1/readings")
+        page.reload()
+        page.wait_for_selector("html[data-ready='1']")
+        wait_until(page, "document.querySelector('#outbox-count').dataset.waiting === '0'")
+        assert len(service.readings_of(motor["id"])) == 1
+    finally:
+        service.app.config["STATIC_DIR"] = old_dir
