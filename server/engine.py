@@ -492,9 +492,11 @@ def interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None = N
     -------
     dict of str -> numpy.ndarray
         Every column of :data:`server.contract.RESULT_COLUMNS`, plus
-        ``"_flags"`` (tuple of codes per row) and ``"_findings"`` (list of
-        dicts per row). Rows that cannot be interpreted carry ``error`` and
-        ``error_field`` and no results.
+        ``"_combination"`` (per row, an index into ``"_combination_flags"``,
+        tuples of flag codes, and ``"_combination_findings"``, lists of
+        ``{flag, text, caution}`` dicts; -1 for a row not interpreted). Rows
+        that cannot be interpreted carry ``error`` and ``error_field`` and no
+        results.
     """
     th = thresholds or Thresholds()
     n = _column_length(cols)
@@ -508,42 +510,48 @@ def interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None = N
     plate_rows = _Parsed({k: plates[k][inverse] for k in per_row})
     readings = _parse_readings(cols, n, plate_rows, errors)
 
-    out = _empty_results(n)
-    out["engine_version"][:] = C.ENGINE_VERSION
-    flags_per_row = np.empty(n, dtype=object)
-    findings_per_row = np.empty(n, dtype=object)
-    empty_flags, empty_findings = (), []
-    flags_per_row.fill(empty_flags)
-    findings_per_row.fill(empty_findings)
+    out = _empty_results(n) if not errors.ok.all() else {}
+    out["engine_version"] = np.full(n, C.ENGINE_VERSION, dtype=object)
+    combo_per_row = np.full(n, -1, dtype=np.int64)
+    codes: list = []
+    finds: list = []
     ok = errors.ok
     idx = np.flatnonzero(ok)
     if idx.size:
         # valid rows only ever point at valid nameplates; map them into the fitted subset
         position = np.full(len(first), -1)
         position[plates["_valid_index"]] = np.arange(plates["_valid_index"].size)
-        fitted = position[inverse[idx]]
-        valid_readings = _Parsed({k: v[idx] for k, v in readings.items()})
+        all_valid = idx.size == n
+        fitted = position[inverse if all_valid else inverse[idx]]
+        valid_readings = _Parsed({k: (v if all_valid else v[idx]) for k, v in readings.items() if k != "taken_at"})
         res, mask = _interpret_chunked(plates, fitted, valid_readings, th)
+        res["supply_zone"] = _ZONE_TEXT[res.pop("supply_zone_code")]
+        res["operating_side"] = _SIDE_TEXT[res.pop("operating_side_code")]
+        res["efficiency_class"] = plates["_valid"]["efficiency_class"][fitted]
         combo, combinations = pd.factorize(mask)
         codes, finds = describe(combinations, th)
         for col, values in res.items():
-            out[col][idx] = values
+            if all_valid:
+                out[col] = values
+            else:
+                out[col][idx] = values
         flag_text = np.array([";".join(c) for c in codes], dtype=object)
         find_text = np.array([" | ".join(f"{d['flag']}: {d['text']}" + (f" Caution: {d['caution']}"
                                                                         if d["caution"] else "")
                                          for d in fl) for fl in finds], dtype=object)
-        out["flags"][idx] = flag_text[combo]
-        out["findings"][idx] = find_text[combo]
-        codes_arr = np.empty(len(codes), dtype=object)
-        codes_arr[:] = codes
-        finds_arr = np.empty(len(finds), dtype=object)
-        finds_arr[:] = finds
-        flags_per_row[idx] = codes_arr[combo]
-        findings_per_row[idx] = finds_arr[combo]
+        if all_valid:
+            out["flags"], out["findings"] = flag_text[combo], find_text[combo]
+            combo_per_row = combo
+        else:
+            out["flags"][idx] = flag_text[combo]
+            out["findings"][idx] = find_text[combo]
+            combo_per_row[idx] = combo
     out["error"] = errors.message
     out["error_field"] = errors.field
-    out["_flags"] = flags_per_row
-    out["_findings"] = findings_per_row
+    # per row: index into the distinct combinations (-1: not interpreted)
+    out["_combination"] = combo_per_row
+    out["_combination_flags"] = codes
+    out["_combination_findings"] = finds
     return out
 
 
@@ -716,14 +724,13 @@ def _interpret_valid(plates: _Parsed, fitted: np.ndarray, r: _Parsed, th: Thresh
         "torque_pct": 100.0 * torque_pu, "torque_low_pct": 100.0 * fused.low / speed_ratio,
         "torque_high_pct": 100.0 * fused.high / speed_ratio,
         "efficiency_pct": 100.0 * eta, "efficiency_low_pct": 100.0 * eta_lo, "efficiency_high_pct": 100.0 * eta_hi,
-        "efficiency_class": pl("efficiency_class"),
         "voltage_unbalance_pct": vu, "voltage_unbalance_factor_pct": vuf, "current_unbalance_pct": iu,
         "derating_factor": derate, "voltage_deviation_pct": v_dev, "frequency_deviation_pct": f_dev,
-        "supply_zone": _ZONE_TEXT[zone_code],
+        "supply_zone_code": zone_code,
         "breakdown_margin": np.where(above, np.nan, margin),
         "predicted_current_a": op.current_a, "predicted_power_factor": op.power_factor,
         "breakdown_torque_now_pct": bd_pct, "starting_margin": starting,
-        "operating_side": _SIDE_TEXT[np.where(has_point, np.where(stable, 1, 2), 0)],
+        "operating_side_code": np.where(has_point, np.where(stable, 1, 2), 0),
     }
     return res, mask
 
@@ -759,8 +766,9 @@ def _row(out: dict, i: int) -> dict:
                                                                     "efficiency_class"):
             value = None
         row[col] = value
-    row["flags"] = list(out["_flags"][i])
-    row["findings"] = list(out["_findings"][i])
+    k = int(out["_combination"][i])
+    row["flags"] = list(out["_combination_flags"][k]) if k >= 0 else []
+    row["findings"] = [dict(d) for d in out["_combination_findings"][k]] if k >= 0 else []
     return row
 
 
