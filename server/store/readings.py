@@ -148,10 +148,16 @@ def _one_reading_select():
 
 
 def get_reading_json(conn: Connection, reading_id: int) -> str:
+    """One reading with its whole review history (``reviews``, oldest first)."""
     row = conn.execute(_one_reading_select(), {"reading_id": reading_id}).mappings().first()
     if row is None:
         raise NotFoundError(f"no reading with id {reading_id}", "id")
-    return reading_json(row)
+    history = conn.execute(
+        select(reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at, users.c.username.label("reviewer"))
+        .join(users, users.c.id == reviews.c.reviewer_id)
+        .where(reviews.c.reading_id == reading_id).order_by(reviews.c.id)).mappings().all()
+    return (reading_json(row)[:-1] + ',"reviews":'
+            + json.dumps([_review_dict(r) for r in history], ensure_ascii=False, separators=(",", ":")) + "}")
 
 
 def get_reading(conn: Connection, reading_id: int) -> dict:

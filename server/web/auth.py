@@ -2,15 +2,19 @@
 
 from __future__ import annotations
 
+import dataclasses
+
 import functools
 import math
 from datetime import timedelta
 
 from flask import Blueprint, current_app, g, jsonify, request
 
+from server.engine import Thresholds
 from server.store import accounts
 
 from .errors import ApiError
+
 from .security import CSRF_HEADER, csrf_ok, csrf_token, json_body
 from .state import state
 
@@ -71,8 +75,13 @@ def check_csrf() -> None:
                                            "use the csrf_token from POST or GET /api/v1/session")
 
 
+def _thresholds() -> dict:
+    """The flag thresholds this service applies (the page draws its load bar with them)."""
+    return dataclasses.asdict(state().thresholds or Thresholds())
+
+
 def _session_body(user: dict, token: str, expires_at=None) -> dict:
-    body = {"user": user, "csrf_token": csrf_token(state().secret, token)}
+    body = {"user": user, "csrf_token": csrf_token(state().secret, token), "thresholds": _thresholds()}
     if expires_at is not None:
         body["expires_at"] = expires_at.isoformat()
     return body
@@ -122,7 +131,7 @@ def login():
 def whoami():
     if g.auth == "cookie":
         return jsonify(_session_body(g.user, g.session_token))
-    return jsonify({"user": g.user, "csrf_token": None})
+    return jsonify({"user": g.user, "csrf_token": None, "thresholds": _thresholds()})
 
 
 @bp.delete("/session")

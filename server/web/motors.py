@@ -37,7 +37,7 @@ def list_motors():
 
 
 @bp.post("/motors")
-@requires("supervisor")
+@requires("technician")   # a technician at the motor registers it from its nameplate; edits are supervisors'
 def create_motor():
     body = json_body()
     validation.unknown_fields(body, MOTOR_FIELDS)

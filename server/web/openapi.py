@@ -93,6 +93,7 @@ ERRORS = {
     "413": _error("the request body is larger than the limit"),
     "415": _error("the body is not sent as application/json"),
     "429": _error("too many failed logins; see Retry-After"),
+    "503": _error("the database is down, read-only or full: nothing was stored; try again (see Retry-After)"),
 }
 
 
@@ -172,6 +173,8 @@ def document() -> dict:
         "taken_at": {"type": "string"}, "received_at": {"type": "string", "format": "date-time"},
         "engine_version": {"type": "string"}, "supersedes": {"type": "integer", "nullable": True},
         "superseded_by": {"type": "integer", "nullable": True}, "review": _ref("Review"),
+        "reviews": {"type": "array", "items": _ref("Review"),
+                    "description": "every review, oldest first (GET /readings/{id} only)"},
         "inputs": {"type": "object", "properties": _reading_properties(),
                    "description": "the reading fields as interpreted"},
         "result": _ref("Result")},
@@ -193,7 +196,9 @@ def document() -> dict:
         "Session": {"type": "object", "required": ["user", "csrf_token"], "properties": {
             "user": _ref("User"), "csrf_token": {"type": "string", "nullable": True,
                                                  "description": "send as X-CSRF-Token on writes"},
-            "expires_at": {"type": "string", "format": "date-time"}}},
+            "expires_at": {"type": "string", "format": "date-time"},
+            "thresholds": {"type": "object", "description": "flag thresholds in force (see server.engine.Thresholds)",
+                           "additionalProperties": {"type": "number"}}}},
         "MotorInput": motor_input,
         "MotorUpdate": motor_update,
         "Motor": {"type": "object", "properties": motor_props},
@@ -248,7 +253,7 @@ def document() -> dict:
             "get": {"summary": "motors with their current nameplate revision", "description": tech, "security": AUTH,
                     "parameters": [SITE_Q],
                     "responses": {"200": _json_response("motors", "MotorList"), **_errs("400", "401")}},
-            "post": {"summary": "register a motor (revision 1)", "description": sup, "security": AUTH,
+            "post": {"summary": "register a motor (revision 1)", "description": tech, "security": AUTH,
                      "parameters": [CSRF], "requestBody": _body("MotorInput"),
                      "responses": {"201": _json_response("created", "Motor"),
                                    **_errs("400", "401", "403", "409", "413", "415")}},
@@ -325,6 +330,10 @@ def document() -> dict:
                                           "content": {"application/json": {"schema": {"type": "object"}}}}}},
         },
     }
+    for path, ops in paths.items():
+        if path != "/openapi.json":  # every other route reads or writes the database
+            for op in ops.values():
+                op["responses"].setdefault("503", ERRORS["503"])
     return {
         "openapi": "3.0.3",
         "info": {"title": "slipwise", "version": ENGINE_VERSION,

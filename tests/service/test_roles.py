@@ -17,7 +17,7 @@ ACCESS = {
     ("GET", "/api/v1/session"): "technician",
     ("DELETE", "/api/v1/session"): "anyone",
     ("GET", "/api/v1/motors"): "technician",
-    ("POST", "/api/v1/motors"): "supervisor",
+    ("POST", "/api/v1/motors"): "technician",
     ("GET", "/api/v1/motors/<id:motor_id>"): "technician",
     ("PUT", "/api/v1/motors/<id:motor_id>"): "supervisor",
     ("POST", "/api/v1/readings"): "technician",
