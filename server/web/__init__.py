@@ -19,7 +19,7 @@ from flask import Flask, request
 from server.store import Database, sqlite_url
 
 from . import auth, errors, export, misc, motors, pages, readings, security
-from .params import IdConverter
+from .params import IdConverter, PagePathConverter
 from .state import State
 
 API_PREFIX = "/api/v1"
@@ -99,6 +99,7 @@ def create_app(test_config: Mapping[str, Any] | None = None) -> Flask:
     app.extensions["slipwise"] = State(db=db, secret=secret, thresholds=load_thresholds(app.config["THRESHOLDS"]))
 
     app.url_map.converters["id"] = IdConverter
+    app.url_map.converters["path"] = PagePathConverter
     app.url_map.strict_slashes = False
     errors.register(app)
     security.register(app)

@@ -107,8 +107,9 @@ AUTH = [{"cookieSession": []}, {"bearerToken": []}]
 
 
 def _q(name: str, description: str, schema: dict | None = None) -> dict:
+    # a blank value is the same as leaving the parameter out (server/web/params.py)
     return {"name": name, "in": "query", "required": False, "schema": schema or {"type": "string"},
-            "description": description}
+            "allowEmptyValue": True, "description": description + "; blank is the same as absent"}
 
 
 def _path_id(name: str) -> dict:

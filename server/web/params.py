@@ -6,7 +6,7 @@ import re
 from datetime import date as _date
 
 from flask import request
-from werkzeug.routing import BaseConverter
+from werkzeug.routing import BaseConverter, PathConverter
 
 from server.contract import FLAG_CODES
 
@@ -26,6 +26,16 @@ class IdConverter(BaseConverter):
 
     def to_url(self, value) -> str:
         return str(int(value))
+
+
+class PagePathConverter(PathConverter):
+    """``path`` that never starts with ``api/``: the page routes do not catch API URLs.
+
+    Without it an API URL that no API route matches (``/api/v1/motors/x``) matched the
+    page's GET-only catch-all, so a PUT or POST there got 405 instead of 404.
+    """
+
+    regex = r"(?!api(?:/|$))[^/].*?"
 
 
 def query(allowed: tuple[str, ...]) -> dict[str, str]:
