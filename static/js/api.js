@@ -1,5 +1,7 @@
 // The service's JSON API under /api/v1: cookie session, CSRF header on writes, one error shape.
 
+import { useThresholds } from "./result.js";
+
 const BASE = "/api/v1";
 const CSRF_HEADER = "X-CSRF-Token"; // server/web/security.py CSRF_HEADER
 
@@ -66,12 +68,14 @@ export async function api(method, path, body) {
 export async function getSession() {
   const r = await once("GET", "/session");
   setCsrf(r.data.csrf_token);
+  useThresholds(r.data.thresholds);
   return r.data.user;
 }
 
 export async function login(username, password) {
   const r = await once("POST", "/session", { username, password });
   setCsrf(r.data.csrf_token);
+  useThresholds(r.data.thresholds);
   return r.data.user;
 }
 

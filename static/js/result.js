@@ -3,9 +3,21 @@
 
 import { fmt, h, s } from "./dom.js";
 
-// The server's default thresholds (server/physics/flags.py, Thresholds). The API does not publish
-// the configured values, so the bar draws these and the flags from the server decide.
+// The thresholds the bar is drawn with: the server's defaults (server/physics/flags.py, Thresholds)
+// until a session brings the ones in force (kept for offline use); the flags come from the server.
+const THRESHOLDS_KEY = "slipwise.thresholds";
 export const LIMITS = { underloaded_pct: 40, overloaded_pct: 100 };
+try {
+  Object.assign(LIMITS, JSON.parse(localStorage.getItem(THRESHOLDS_KEY) || "{}"));
+} catch { /* a damaged entry: keep the defaults */ }
+
+/** Take the thresholds a session reported (GET/POST /api/v1/session). */
+export function useThresholds(t) {
+  if (!t || typeof t.underloaded_pct !== "number" || typeof t.overloaded_pct !== "number") return;
+  LIMITS.underloaded_pct = t.underloaded_pct;
+  LIMITS.overloaded_pct = t.overloaded_pct;
+  localStorage.setItem(THRESHOLDS_KEY, JSON.stringify(LIMITS));
+}
 
 export const FLAG_WORDS = {
   underloaded: "Underloaded",

@@ -180,7 +180,12 @@ export function historyBlock(reading, motor) {
   if (reading.supersedes) items.push(h("li", {}, "Replaces ", h("a", { href: `#/reading/${reading.supersedes}` }, `reading ${reading.supersedes}`)));
   if (reading.superseded_by) items.push(h("li", {}, "Replaced by ", h("a", { href: `#/reading/${reading.superseded_by}` }, `reading ${reading.superseded_by}`)));
   items.push(h("li", {}, `Received by the server ${reading.received_at.replace("T", " ").slice(0, 19)} UTC; engine ${reading.engine_version}`));
-  if (reading.review) items.push(h("li", {}, `Reviewed ${reading.review.reviewed_at.replace("T", " ").slice(0, 16)} UTC by ${reading.review.reviewer}: ${reviewWord(reading.review.decision)}`));
+  // every review when the detail carries them (GET /readings/{id}), else the latest one
+  const reviews = Array.isArray(reading.reviews) ? reading.reviews : (reading.review ? [reading.review] : []);
+  for (const rv of reviews) {
+    items.push(h("li", {}, `Reviewed ${rv.reviewed_at.replace("T", " ").slice(0, 16)} UTC by ${rv.reviewer}: ${reviewWord(rv.decision)}`
+      + (rv.comment ? ` (${rv.comment})` : "")));
+  }
   if (motor) items.push(h("li", {}, `Nameplate revision ${reading.motor_revision} of ${motor.revision}${motor.revision > reading.motor_revision ? " (the nameplate was edited since)" : ""}`));
   return h("section", { class: "panel", "aria-labelledby": "hist-h" }, h("h2", { id: "hist-h" }, "History"), h("ul", { class: "history" }, items));
 }

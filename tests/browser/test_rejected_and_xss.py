@@ -28,7 +28,7 @@ def test_rejected_reading_is_shown_kept_and_corrected(new_context, service):
     page.wait_for_selector("#send-state .state.waiting")
     ctx.set_offline(False)  # ...sent upstairs, and refused
     wait_until(page, "document.querySelector('#outbox-count').dataset.rejected === '1'", 20)
-    assert page.get_attribute("#outbox-count", "data-waiting") == "0"
+    wait_until(page, "document.querySelector('#outbox-count').dataset.waiting === '0'", 10)
     status, reply = service.call("POST", "/api/v1/interpret", {"motor_id": motor["id"], **{k: float(v) for k, v in BAD.items()}})
     assert status == 400 and reply["error"]["field"] == "power_kw"
     server_message = reply["error"]["message"]
@@ -53,8 +53,9 @@ def test_rejected_reading_is_shown_kept_and_corrected(new_context, service):
     page.wait_for_selector("#load-value")
     stored = service.readings_of(motor["id"])
     assert len(stored) == 1 and stored[0]["inputs"]["power_kw"] is None and stored[0]["inputs"]["speed_rpm"] == 1475
-    assert page.get_attribute("#outbox-count", "data-rejected") == "0"
-    assert page.get_attribute("#outbox-count", "data-waiting") == "0"
+    # the outbox count is refreshed asynchronously after the send
+    wait_until(page, "document.querySelector('#outbox-count').dataset.rejected === '0'", 10)
+    wait_until(page, "document.querySelector('#outbox-count').dataset.waiting === '0'", 10)
 
 
 HOSTILE = "<img src=x onerror=alert(1)>"
