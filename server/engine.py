@@ -318,6 +318,7 @@ def _parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[_Parsed, _Errors
     p["x1_share"] = typical.lookup(typical.LEAKAGE_STATOR_SHARE, p["design"])
     p["lrt_pct"] = np.where(np.isnan(p["locked_rotor_torque_pct"]),
                             typical.lookup(typical.LOCKED_ROTOR_TORQUE_PCT, p["design"]), p["locked_rotor_torque_pct"])
+    p["lrt_ratio"] = p["lrt_pct"] / 100.0
     p["breakaway_share"] = typical.lookup(typical.BREAKAWAY_TORQUE_PCT, p["driven_load"]) / 100.0
     p["fw_share"] = typical.friction_windage_share_of_fixed(poles)
     # booleans for the per-row physics (comparing text per row is slow)
@@ -431,7 +432,7 @@ _CACHE_LIMIT = 20000
 _cache: "OrderedDict[tuple, tuple]" = OrderedDict()
 _cache_lock = threading.Lock()
 _FIT_INPUTS = ("rated_kw", "rated_voltage_v", "rated_current_a", "rated_frequency_hz", "poles_used",
-               "rated_speed_rpm", "pf_used", "eta_used", "bd_ratio", "x1_share", "fw_share")
+               "rated_speed_rpm", "pf_used", "eta_used", "bd_ratio", "x1_share", "fw_share", "lrt_ratio")
 
 
 def _fit_for_rows(p: _Parsed) -> ckt.Circuit:
@@ -449,9 +450,9 @@ def _fit_for_rows(p: _Parsed) -> ckt.Circuit:
                 _cache.move_to_end(key)
                 rows[j] = hit
     if missing:
-        kw, v, i, f, poles, nr, pf, eta, bd, x1, fw = mat[missing].T
+        kw, v, i, f, poles, nr, pf, eta, bd, x1, fw, lrt = mat[missing].T
         fit = ckt.fit_circuit(kw * KILOWATT_W, v, i, f, poles, nr, pf, eta, bd, x1,
-                              np.full(len(missing), typical.FIXED_LOSS_SHARE), fw)
+                              np.full(len(missing), typical.FIXED_LOSS_SHARE), fw, locked_rotor_ratio=lrt)
         with _cache_lock:
             for k, j in enumerate(missing):
                 rows[j] = tuple(np.asarray(a)[k] for a in fit)

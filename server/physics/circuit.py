@@ -49,6 +49,7 @@ class Circuit(NamedTuple):
     rated_speed_rpm: np.ndarray
     breakdown_ratio: np.ndarray  # achieved breakdown / rated shaft torque
     fit_ok: np.ndarray           # bool: breakdown target reached within 1 %
+    r2_rise: np.ndarray = np.zeros(1)  # deep-bar rise: R2(s) = R2 (1 + r2_rise s^2); 0 for a plain cage
 
     def take(self, index) -> "Circuit":
         """Rows of this circuit table picked by an index array."""
@@ -106,7 +107,7 @@ def _trial(x_total, v_phase, i1, r1, p_core, slip, x1_share, omega_sync):
 
 def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequency_hz, poles,
                 rated_speed_rpm, rated_power_factor, rated_efficiency, breakdown_ratio,
-                x1_share, fixed_loss_share, friction_windage_share):
+                x1_share, fixed_loss_share, friction_windage_share, locked_rotor_ratio=np.nan):
     """Fit the per-phase equivalent circuit to the nameplate's rated point.
 
     Parameters
@@ -137,6 +138,13 @@ def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequenc
         Share of the rated losses that is core plus friction and windage [-].
     friction_windage_share : numeric
         Share of those fixed losses that is friction and windage [-].
+    locked_rotor_ratio : numeric, optional
+        Locked-rotor over rated shaft torque [-]. Where given, the rotor
+        resistance is made to rise with the square of rotor frequency
+        (deep-bar and double-cage rotors: skin effect grows as f^2 at low
+        rotor frequency) so that the circuit starts with this torque; the
+        running point and the breakdown torque are unchanged. NaN: a plain
+        single cage.
 
     Returns
     -------
@@ -230,8 +238,47 @@ def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequenc
     fin = _trial(x_total, v_phase, i1, r1, p_core, slip, x1_share, omega_sync)
     achieved = (fin.breakdown_em_nm - t_fw) / t_rated
     fit_ok = valid_any & fin.valid & (np.abs(achieved / bd_ratio - 1.0) < 0.01)
-    return Circuit(r1, fin.x1_ohm, fin.r2_ohm, fin.x2_ohm, fin.xm_ohm, fin.rc_ohm, p_fw, v_ll, f_r, poles, n_r,
-                   achieved, fit_ok)
+    plain = Circuit(r1, fin.x1_ohm, fin.r2_ohm, fin.x2_ohm, fin.xm_ohm, fin.rc_ohm, p_fw, v_ll, f_r, poles, n_r,
+                    achieved, fit_ok, np.zeros_like(r1))
+    rise = _deep_bar_rise(plain, np.broadcast_to(np.asarray(locked_rotor_ratio, dtype=float), r1.shape) * t_rated,
+                          slip)
+    # R2(s) = R2_0 (1 + k s^2) equals the fitted R2 at rated slip: the running point is kept
+    return plain._replace(r2_ohm=plain.r2_ohm / (1.0 + rise * slip ** 2), r2_rise=rise)
+
+
+def _deep_bar_rise(circuit: "Circuit", locked_rotor_nm, rated_slip):
+    """Rise factor k of ``R2(s) = R2_0 (1 + k s^2)``, ``R2_0 = R2 / (1 + k s_r^2)``, so
+    that the circuit's torque at standstill is the locked-rotor torque.
+
+    At standstill ``T = 3 V_th^2 r / (w_s ((R_th + r)^2 + X^2))`` with
+    ``X = X_th + X2``: a quadratic in ``r``; its smaller root is the first
+    resistance reaching the torque as ``r`` grows from R2. A target above the
+    breakdown torque takes ``r = sqrt(R_th^2 + X^2)`` (start at breakdown, as
+    a design D motor nearly does); one below the plain cage's keeps ``k = 0``.
+    """
+    vth, zth, omega_sync = _thevenin(circuit, circuit.rated_voltage_v, circuit.rated_frequency_hz)
+    x = zth.imag + circuit.x2_ohm
+    t = np.asarray(locked_rotor_nm, dtype=float) * omega_sync
+    a, b, c = t, 2.0 * t * zth.real - 3.0 * np.abs(vth) ** 2, t * (zth.real ** 2 + x ** 2)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        disc = b ** 2 - 4.0 * a * c
+        r = np.where(disc >= 0, (-b - np.sqrt(np.maximum(disc, 0.0))) / (2.0 * a), np.sqrt(zth.real ** 2 + x ** 2))
+        q = r / circuit.r2_ohm
+        k = (q - 1.0) / (1.0 - q * np.asarray(rated_slip, dtype=float) ** 2)
+    return np.where(np.isfinite(t) & np.isfinite(k) & (k > 0), k, 0.0)
+
+
+def _thevenin(circuit: "Circuit", voltage_v, frequency_hz):
+    """Thevenin voltage [V] and impedance [ohm] seen by the rotor branch, and w_s [rad/s]."""
+    _, x1, _, xm, rc = _scaled(circuit, frequency_hz)
+    v_phase = np.asarray(voltage_v, dtype=float) / SQRT3
+    zm = _core_branch(rc, xm)
+    z1 = circuit.r1_ohm + 1j * x1
+    with np.errstate(divide="ignore", invalid="ignore"):
+        vth = v_phase * zm / (z1 + zm)
+        zth = z1 * zm / (z1 + zm)
+    omega_sync = synchronous_speed_rpm(frequency_hz, circuit.poles) * RPM_TO_RAD_S
+    return vth, zth, omega_sync
 
 
 class OperatingPoint(NamedTuple):
@@ -277,8 +324,9 @@ def solve(circuit: Circuit, voltage_v, frequency_hz, slip):
     _, x1, x2, xm, rc = _scaled(circuit, frequency_hz)
     slip = np.asarray(slip, dtype=float)
     v_phase = np.asarray(voltage_v, dtype=float) / SQRT3
+    r2 = circuit.r2_ohm * (1.0 + circuit.r2_rise * slip ** 2)
     with np.errstate(divide="ignore", invalid="ignore"):
-        z2 = np.where(slip > 0, circuit.r2_ohm / np.where(slip > 0, slip, 1.0) + 1j * x2, np.inf + 0j)
+        z2 = np.where(slip > 0, r2 / np.where(slip > 0, slip, 1.0) + 1j * x2, np.inf + 0j)
         zm = _core_branch(rc, xm)
         zp = np.where(slip > 0, _parallel(zm, z2), zm)
         z = circuit.r1_ohm + 1j * x1 + zp
@@ -286,7 +334,7 @@ def solve(circuit: Circuit, voltage_v, frequency_hz, slip):
         e = v_phase - i1 * (circuit.r1_ohm + 1j * x1)
         i2 = np.where(slip > 0, e / z2, 0.0)
         p_in = 3.0 * (v_phase * np.conj(i1)).real
-        p_ag = 3.0 * np.abs(i2) ** 2 * np.where(slip > 0, circuit.r2_ohm / np.where(slip > 0, slip, 1.0), 0.0)
+        p_ag = 3.0 * np.abs(i2) ** 2 * np.where(slip > 0, r2 / np.where(slip > 0, slip, 1.0), 0.0)
         n_sync = synchronous_speed_rpm(frequency_hz, circuit.poles)
         omega_sync = n_sync * RPM_TO_RAD_S
         t_em = p_ag / omega_sync
@@ -316,20 +364,20 @@ def breakdown(circuit: Circuit, voltage_v, frequency_hz):
 
     Notes
     -----
-    Thevenin form: ``s_max = R2 / sqrt(R_th^2 + (X_th + X2)^2)``; at fixed
+    Thevenin form: ``T_max = 3 V_th^2 / (2 w_s (R_th + sqrt(R_th^2 + (X_th + X2)^2)))``,
+    which does not depend on R2; it occurs where ``R2(s) / s = sqrt(R_th^2 + (X_th + X2)^2)``,
+    i.e. ``s = R2 / root`` for a plain cage (with the deep-bar rise a quadratic in s). At fixed
     frequency the torque scales with the square of the voltage.
     """
-    _, x1, x2, xm, rc = _scaled(circuit, frequency_hz)
-    v_phase = np.asarray(voltage_v, dtype=float) / SQRT3
-    zm = _core_branch(rc, xm)
-    z1 = circuit.r1_ohm + 1j * x1
+    vth, zth, omega_sync = _thevenin(circuit, voltage_v, frequency_hz)
+    _, _, x2, _, _ = _scaled(circuit, frequency_hz)
     with np.errstate(divide="ignore", invalid="ignore"):
-        vth = v_phase * zm / (z1 + zm)
-        zth = z1 * zm / (z1 + zm)
         root = np.sqrt(zth.real ** 2 + (zth.imag + x2) ** 2)
-        omega_sync = synchronous_speed_rpm(frequency_hz, circuit.poles) * RPM_TO_RAD_S
         tmax = 3.0 * np.abs(vth) ** 2 / (2.0 * omega_sync * (zth.real + root))
-        s_max = circuit.r2_ohm / root
+        b = circuit.r2_ohm / root
+        a = b * circuit.r2_rise
+        # a s^2 - s + b = 0, smaller root; a = 0 gives s = b
+        s_max = np.where(a > 0, (1.0 - np.sqrt(np.maximum(1.0 - 4.0 * a * b, 0.0))) / (2.0 * np.where(a > 0, a, 1.0)), b)
     return tmax, s_max
 
 

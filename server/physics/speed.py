@@ -42,7 +42,7 @@ def synchronous_speed_rpm(frequency_hz, poles):
     """
     frequency_hz = np.asarray(frequency_hz, dtype=float)
     poles = np.asarray(poles, dtype=float)
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         return _RPM_PER_HZ_PER_POLE * frequency_hz / poles
 
 
@@ -101,7 +101,7 @@ def slip_pu(speed_rpm, sync_speed_rpm):
     """
     n = np.asarray(speed_rpm, dtype=float)
     ns = np.asarray(sync_speed_rpm, dtype=float)
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         return (ns - n) / ns
 
 

@@ -133,3 +133,22 @@ def test_no_load_current_is_a_plausible_share_of_rated():
     i_rated = 11000 / (np.sqrt(3) * 400 * 0.85 * 0.91)
     share = ckt.no_load_current_a(fit, 400.0, 50.0)[0] / i_rated
     assert 0.25 < share < 0.55
+
+
+def test_deep_bar_rotor_starts_with_the_design_torque():
+    # a design N motor starts with ~2.2x rated torque (typical catalogue value, from memory); a single
+    # cage fitted at the running point starts with far less. The rise of rotor resistance with rotor
+    # frequency gives the locked-rotor torque and keeps the running point and breakdown torque.
+    plain = nameplate_fit()
+    deep = ckt.fit_circuit(11000.0, 400.0, 11000 / (np.sqrt(3) * 400 * 0.85 * 0.91), 50.0, 4, 1460.0, 0.85, 0.91,
+                           2.5, 0.4, 0.30, 0.35, locked_rotor_ratio=2.2)
+    t_rated = 11000.0 / (1460 * RPM)
+    assert ckt.solve(plain, 400.0, 50.0, 1.0).torque_em_nm[0] / t_rated < 1.5
+    assert ckt.solve(deep, 400.0, 50.0, 1.0).torque_em_nm[0] / t_rated == pytest.approx(2.2, rel=1e-6)
+    s_r = 40 / 1500
+    assert ckt.solve(deep, 400.0, 50.0, s_r).output_w[0] == pytest.approx(11000.0, rel=1e-9)
+    assert ckt.breakdown(deep, 400.0, 50.0)[0][0] == pytest.approx(ckt.breakdown(plain, 400.0, 50.0)[0][0])
+    # breakdown slip is where the solved curve peaks
+    s = np.linspace(0.01, 1.0, 20001)
+    curve = ckt.solve(deep, 400.0, 50.0, s).torque_em_nm
+    assert s[curve.argmax()] == pytest.approx(ckt.breakdown(deep, 400.0, 50.0)[1][0], abs=2e-4)
