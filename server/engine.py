@@ -499,6 +499,12 @@ def interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None = N
         that cannot be interpreted carry ``error`` and ``error_field`` and no
         results.
     """
+    # garbage rows (1e308, inf) overflow on their way to their error; every result is checked
+    with np.errstate(all="ignore"):
+        return _interpret_columns(cols, thresholds)
+
+
+def _interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None) -> dict:
     th = thresholds or Thresholds()
     n = _column_length(cols)
     first, inverse = _group_nameplates(cols, n)
