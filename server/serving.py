@@ -40,7 +40,10 @@ def _url_host(host: str) -> list[str]:
 
 
 def serve(args, config: dict[str, Any]) -> int:
+    from sqlalchemy.exc import OperationalError
+
     from server.store import Database, SchemaError
+    from server.store.errors import UnavailableError
     from server.web import resolved_database_url
 
     if not 0 <= args.port <= 65535:
@@ -77,16 +80,24 @@ def serve(args, config: dict[str, Any]) -> int:
     schema = os.environ.get("SLIPWISE_DB_SCHEMA") or None
     db = Database(resolved_database_url({**config, "DATABASE_URL": config.get("DATABASE_URL")
                                          or os.environ.get("DATABASE_URL")}), schema=schema)
+    upgraded = True
     try:
         before, after = db.upgrade()
     except SchemaError as e:
         print(f"slipwise: {e}", file=sys.stderr)
         return 2
+    except (OperationalError, UnavailableError) as e:
+        # down at start (PostgreSQL not up yet, a read-only folder...): serve, and let the workers
+        # check and upgrade the schema when the database answers; until then the API answers 503
+        reason = str(getattr(e, "orig", None) or e).strip().splitlines()[0][:200]
+        print(f"slipwise: the database {db.describe()} cannot be used now ({reason}); serving anyway: "
+              "the API answers 503 until it can", file=sys.stderr)
+        upgraded = False
     finally:
         db.dispose()
-    if before != after:
+    if upgraded and before != after:
         print(f"database {db.describe()}: schema upgraded from version {before} to {after}")
-    else:
+    elif upgraded:
         print(f"database {db.describe()}: schema version {after}")
     if not config.get("SECRET_KEY") and not os.environ.get("SLIPWISE_SECRET_KEY"):
         from server.web import load_secret
@@ -114,5 +125,5 @@ def serve(args, config: dict[str, Any]) -> int:
     }
     if cert:
         options.update(certfile=cert, keyfile=key)
-    _Server({**config, "AUTO_UPGRADE": False}, options).run()
+    _Server({**config, "AUTO_UPGRADE": not upgraded}, options).run()
     return 0

@@ -5,6 +5,7 @@ from __future__ import annotations
 import fcntl
 import os
 import re
+import stat
 import threading
 from contextlib import contextmanager
 from pathlib import Path
@@ -12,9 +13,10 @@ from typing import Iterator
 
 from sqlalchemy import Connection, create_engine, event
 from sqlalchemy.engine import make_url
+from sqlalchemy.exc import OperationalError
 
 from . import migrations
-from .errors import SchemaError, SchemaTooNewError
+from .errors import SchemaError, SchemaTooNewError, UnavailableError
 
 _SCHEMA_NAME = re.compile(r"^[a-z_][a-z0-9_]{0,62}$")
 
@@ -54,12 +56,14 @@ class Database:
             raise SchemaError("database schema name must be lower-case letters, digits and _")
         self.schema = schema
         self._write_lock_path: str | None = None
+        self._sqlite_path: str | None = None
         self._thread_lock = threading.Lock()
         self._lock_fd: int | None = None
         if self.dialect == "sqlite":
             if parsed.database and parsed.database != ":memory:":
                 Path(parsed.database).parent.mkdir(parents=True, exist_ok=True)
                 self._write_lock_path = parsed.database + ".writelock"
+                self._sqlite_path = parsed.database
             self.engine = create_engine(self.url, pool_size=pool_size, max_overflow=8,
                                         connect_args={"timeout": 30, "check_same_thread": False})
             event.listen(self.engine, "connect", _sqlite_on_connect)
@@ -73,17 +77,47 @@ class Database:
 
     @contextmanager
     def read(self) -> Iterator[Connection]:
-        with self.engine.connect() as conn:
-            with conn.begin():
-                yield conn
+        try:
+            with self.engine.connect() as conn:
+                with conn.begin():
+                    yield conn
+        except OperationalError as e:  # a folder made read-only: SQLite cannot even read
+            if self.dialect == "sqlite" and "readonly database" in str(e.orig).lower():
+                self._after_read_only()
+            raise
 
     @contextmanager
     def write(self) -> Iterator[Connection]:
-        with self._sqlite_writer():
-            with self.engine.connect() as conn:
-                conn = conn.execution_options(slipwise_write=True)
-                with conn.begin():
-                    yield conn
+        try:
+            with self._sqlite_writer():
+                with self.engine.connect() as conn:
+                    conn = conn.execution_options(slipwise_write=True)
+                    with conn.begin():
+                        yield conn
+        except OperationalError as e:
+            if self.dialect == "sqlite" and "readonly database" in str(e.orig).lower():
+                self._after_read_only()
+            raise
+
+    def _after_read_only(self) -> None:
+        """Make SQLite write again by itself once the file (or its folder) is writable again.
+
+        A connection opened while the file was read-only stays read-only for its life, so every pooled
+        one is closed. And SQLite gives the -shm/-wal files it creates the database file's mode: made
+        while the file was read-only, they stay read-only after the file is writable again, and refuse
+        every write; this process made them, so it gives them the database file's mode again.
+        """
+        self.engine.dispose()
+        path = self._sqlite_path
+        if path is None or not _can_write(path):
+            return
+        mode = stat.S_IMODE(os.stat(path).st_mode)
+        for side in (path + "-shm", path + "-wal"):
+            try:
+                if os.stat(side).st_uid == os.geteuid() and not _can_write(side):
+                    os.chmod(side, mode)
+            except OSError:
+                pass
 
     @contextmanager
     def _sqlite_writer(self):
@@ -98,7 +132,11 @@ class Database:
             return
         with self._thread_lock:
             if self._lock_fd is None:
-                self._lock_fd = os.open(self._write_lock_path, os.O_RDWR | os.O_CREAT, 0o600)
+                try:
+                    self._lock_fd = os.open(self._write_lock_path, os.O_RDWR | os.O_CREAT, 0o600)
+                except OSError as e:
+                    raise UnavailableError(f"cannot open the write lock {self._write_lock_path}: "
+                                           f"{e.strerror}") from e
             fcntl.flock(self._lock_fd, fcntl.LOCK_EX)
             try:
                 yield
@@ -116,6 +154,10 @@ class Database:
             return int(conn.exec_driver_sql("SELECT version FROM schema_version").scalar_one())
 
     def upgrade(self, target: int = migrations.HEAD) -> tuple[int, int]:
+        # a database already at the target needs no write: a read-only one still serves reads
+        current = self.version()
+        if target <= current <= migrations.HEAD:
+            return current, current
         with self.write() as conn:
             return migrations.upgrade(conn, target)
 
@@ -136,6 +178,11 @@ class Database:
         if self._lock_fd is not None:
             os.close(self._lock_fd)
             self._lock_fd = None
+
+
+def _can_write(path: str) -> bool:
+    # access(), never open()+close(): closing any descriptor of an SQLite file drops this process's locks
+    return os.access(path, os.W_OK, effective_ids=True)
 
 
 def _sqlite_on_connect(dbapi_conn, _record) -> None:

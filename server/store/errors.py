@@ -26,6 +26,13 @@ class ValidationError(StoreError):
     code = "invalid_input"
 
 
+class UnavailableError(Exception):
+    """The database cannot be reached, or cannot write now (read-only, full, failing disk).
+
+    Nothing of the request was stored; the caller may try again later.
+    """
+
+
 class SchemaError(Exception):
     """The database schema cannot be used by this version of slipwise."""
 

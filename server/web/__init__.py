@@ -9,14 +9,17 @@ Nothing is read at import time.
 from __future__ import annotations
 
 import json
+import logging
 import os
 import secrets
 from pathlib import Path
 from typing import Any, Mapping
 
 from flask import Flask, request
+from sqlalchemy.exc import OperationalError
 
 from server.store import Database, sqlite_url
+from server.store.errors import UnavailableError
 
 from . import auth, errors, export, misc, motors, pages, readings, security
 from .params import IdConverter, PagePathConverter
@@ -92,11 +95,15 @@ def create_app(test_config: Mapping[str, Any] | None = None) -> Flask:
     app.config["SECRET_KEY"] = secret
 
     db = Database(resolved_database_url(app.config), schema=app.config["DB_SCHEMA"] or None)
-    if app.config["AUTO_UPGRADE"] in (True, "1", "true", "True"):
-        db.upgrade()
-    else:
-        db.check_current()
-    app.extensions["slipwise"] = State(db=db, secret=secret, thresholds=load_thresholds(app.config["THRESHOLDS"]))
+    st = State(db=db, secret=secret, thresholds=load_thresholds(app.config["THRESHOLDS"]),
+               auto_upgrade=app.config["AUTO_UPGRADE"] in (True, "1", "true", "True"))
+    try:
+        st.ensure_schema()
+    except (OperationalError, UnavailableError) as e:
+        # down, or unreadable, at start: serve anyway; the API answers 503 until the database is back
+        logging.getLogger("slipwise.web").warning("database not usable at start (%s); checking again per request",
+                                                  str(getattr(e, "orig", None) or e).strip().splitlines()[0][:200])
+    app.extensions["slipwise"] = st
 
     app.url_map.converters["id"] = IdConverter
     app.url_map.converters["path"] = PagePathConverter
@@ -107,6 +114,8 @@ def create_app(test_config: Mapping[str, Any] | None = None) -> Flask:
     @app.before_request
     def _who():
         if request.path.startswith(API_PREFIX + "/"):
+            if request.path not in (API_PREFIX + "/health", API_PREFIX + "/openapi.json"):
+                st.ensure_schema()
             auth.load_user()
 
     for bp in (auth.bp, motors.bp, readings.bp, export.bp, misc.bp):

@@ -6,9 +6,12 @@ import json
 import logging
 
 from flask import Flask, Response
+from sqlalchemy.exc import InterfaceError, OperationalError
+from sqlalchemy.exc import TimeoutError as PoolTimeoutError
 from werkzeug.exceptions import HTTPException
 
-from server.store.errors import ConflictError, NotFoundError, SchemaError, StoreError, ValidationError
+from server.store.errors import (ConflictError, NotFoundError, SchemaError, StoreError, UnavailableError,
+                                 ValidationError)
 
 log = logging.getLogger("slipwise.web")
 
@@ -17,6 +20,24 @@ _HTTP_CODES = {400: "bad_request", 401: "unauthorized", 403: "forbidden", 404: "
                405: "method_not_allowed", 406: "not_acceptable", 409: "conflict", 413: "body_too_large",
                414: "uri_too_long", 415: "unsupported_media_type", 429: "too_many_attempts",
                431: "headers_too_large", 500: "internal_error", 501: "not_implemented", 503: "unavailable"}
+
+
+RETRY_AFTER_S = 5
+# what SQLite says when it cannot write (file or folder read-only, disk full or failing)
+_CANNOT_WRITE = ("readonly", "read-only", "disk is full", "disk i/o error", "write lock")
+
+
+def unavailable_response(e: Exception) -> Response:
+    """503 for a database that is down, read-only or full: nothing of this request was stored."""
+    text = str(getattr(e, "orig", None) or e).strip()
+    detail = text.splitlines()[0][:200] if text else type(e).__name__
+    log.warning("database unavailable: %s", detail)
+    if any(s in detail.lower() for s in _CANNOT_WRITE):
+        message = ("the database is read-only or full at the moment (or its storage is failing): nothing was "
+                   "stored by this request; try again later")
+    else:
+        message = "the database is not reachable at the moment: nothing was stored by this request; try again later"
+    return error_response(503, "unavailable", message, None, {"Retry-After": str(RETRY_AFTER_S)})
 
 
 class ApiError(Exception):
@@ -52,6 +73,13 @@ def register(app: Flask) -> None:
     def _schema(e: SchemaError):
         log.error("database schema problem: %s", e)
         return error_response(503, "unavailable", "the database schema does not match this server")
+
+    @app.errorhandler(OperationalError)
+    @app.errorhandler(InterfaceError)
+    @app.errorhandler(PoolTimeoutError)
+    @app.errorhandler(UnavailableError)
+    def _unavailable(e: Exception):
+        return unavailable_response(e)
 
     @app.errorhandler(HTTPException)
     def _http(e: HTTPException):

@@ -20,6 +20,25 @@ class State:
     picture_cache: "OrderedDict[tuple, bytes]" = field(default_factory=OrderedDict)
     picture_lock: threading.Lock = field(default_factory=threading.Lock)
     picture_cache_size: int = 256
+    auto_upgrade: bool = True      # upgrade an older schema (else refuse it)
+    schema_ready: bool = False     # set once the schema was checked; not at start if the database was down
+    schema_lock: threading.Lock = field(default_factory=threading.Lock)
+
+    def ensure_schema(self) -> None:
+        """Check (or upgrade) the schema the first time the database answers.
+
+        Raises what the database raises while it is down (the API answers 503 then), and
+        SchemaError for a schema this server cannot use.
+        """
+        if self.schema_ready:
+            return
+        with self.schema_lock:
+            if not self.schema_ready:
+                if self.auto_upgrade:
+                    self.db.upgrade()
+                else:
+                    self.db.check_current()
+                self.schema_ready = True
 
 
 def state() -> State:

@@ -84,6 +84,13 @@ class Backend:
                 pytest.fail(f"PostgreSQL is not reachable at {self.url} ({problem}): this test needs it; start it "
                             "(scripts/setup --test) or set DATABASE_URL", pytrace=False)
 
+    @classmethod
+    def public_schema(cls, url: str) -> "Backend":
+        """A PostgreSQL database of the test's own (a throwaway cluster): its public schema, nothing to drop."""
+        b = cls.__new__(cls)
+        b.kind, b.url, b.schema, b.admin = "postgresql", url, None, None
+        return b
+
     def env(self) -> dict[str, str]:
         env = {"DATABASE_URL": self.url}
         if self.schema:
@@ -91,7 +98,7 @@ class Backend:
         return env
 
     def engine(self):
-        if self.kind == "sqlite":
+        if self.kind == "sqlite" or not self.schema:
             return create_engine(self.url)
         return create_engine(self.url, connect_args={"options": f"-csearch_path={self.schema}"})
 
@@ -145,10 +152,11 @@ class Server:
             if self.proc.poll() is not None:
                 raise AssertionError(f"slipwise serve exited {self.proc.returncode}:\n{self.output()}")
             try:
-                with urllib.request.urlopen(self.base + "/api/v1/health", timeout=2) as r:
-                    if r.status == 200:
-                        return self
-            except (OSError, urllib.error.HTTPError):
+                with urllib.request.urlopen(self.base + "/api/v1/health", timeout=2):
+                    return self
+            except urllib.error.HTTPError:  # it answers (503 while its database is down)
+                return self
+            except OSError:
                 time.sleep(0.1)
         raise AssertionError("slipwise serve did not answer:\n" + self.output())
 
@@ -219,7 +227,8 @@ def assert_unavailable(status, headers, body, *, cannot_write: bool) -> None:
     assert set(err) == {"code", "message", "field"}, err
     assert err["code"] == "unavailable" and err["field"] is None, err
     assert "nothing was stored" in err["message"], err
-    assert ("cannot store" in err["message"]) == cannot_write, err
+    assert ("read-only or full" in err["message"]) == cannot_write, err
+    assert ("not reachable" in err["message"]) != cannot_write, err
     assert "Traceback" not in err["message"] and "sqlalchemy" not in err["message"].lower(), err
     assert int(headers["Retry-After"]) > 0
 
