@@ -81,7 +81,27 @@ def _json_response(description: str, schema: str) -> dict:
 
 
 def _body(schema: str) -> dict:
-    return {"required": True, "content": {"application/json": {"schema": _ref(schema)}}}
+    media: dict[str, Any] = {"schema": _ref(schema)}
+    if schema in EXAMPLES:
+        media["example"] = EXAMPLES[schema]
+    return {"required": True, "content": {"application/json": media}}
+
+
+# Request examples (a fictional 11 kW pump, 400 V 50 Hz 4-pole, figures typical of a catalogue IE3 motor,
+# from memory); clients and fuzzers start from them.
+_EXAMPLE_NAMEPLATE = {"rated_power_kw": 11, "rated_voltage_v": 400, "rated_current_a": 21.5,
+                      "rated_frequency_hz": 50, "rated_speed_rpm": 1460, "driven_load": "variable_torque"}
+_EXAMPLE_READING = {"frequency_hz": 50, "speed_rpm": 1472, "current_l1_a": 16.4, "current_l2_a": 16.8,
+                    "current_l3_a": 16.2, "voltage_l12_v": 402, "voltage_l23_v": 398, "voltage_l31_v": 405,
+                    "taken_at": "2025-03-14T09:30:00+01:00"}
+EXAMPLES = {
+    "Login": {"username": "tess", "password": "a long passphrase"},
+    "MotorInput": {"site": "Example Works", "tag": "P-101", "location": "pump house", **_EXAMPLE_NAMEPLATE},
+    "MotorUpdate": {**_EXAMPLE_NAMEPLATE, "rated_current_a": 21.8, "revision": 1},
+    "ReadingInput": {"client_id": "6f1c2d3e-4b5a-4c6d-8e7f-901a2b3c4d5e", "motor_id": 1, **_EXAMPLE_READING},
+    "ReviewInput": {"decision": "retake", "comment": "speed reading looks like the pulley, not the shaft"},
+    "InterpretInput": {**_EXAMPLE_NAMEPLATE, **_EXAMPLE_READING},
+}
 
 
 ERRORS = {
