@@ -7,6 +7,7 @@ refused over HTTP is refused from a CSV too.
 from __future__ import annotations
 
 import math
+import unicodedata
 import uuid
 from datetime import datetime, timedelta, timezone
 from typing import Any, Mapping
@@ -19,6 +20,11 @@ from .schema import REVISION_NAMEPLATE_FIELDS
 READING_NUMBER_FIELDS = tuple(f for f in READING_FIELDS if f != "taken_at")
 TEXT_LIMITS = {"site": 120, "location": 200, "description": 2000, "comment": 2000}
 TAKEN_AT_EARLIEST = datetime(2000, 1, 1, tzinfo=timezone.utc)
+# Unicode categories a tag may not hold: controls (C0, DEL, C1), format characters (zero-width space,
+# byte order mark, the bidirectional overrides that reorder what is shown - "Trojan Source",
+# CVE-2021-42574), line and paragraph separators, private use. Each would let two tags that look
+# the same on a label, the page or the CSV be different records.
+TAG_REFUSED_CATEGORIES = frozenset({"Cc", "Cf", "Zl", "Zp", "Co"})
 
 
 def blank(value: Any) -> bool:
@@ -39,6 +45,8 @@ def number(name: str, value: Any) -> float | int | None:
     except ValueError:
         raise ValidationError(f"{name} must be a number from {spec.range_text()}, not {str(value)[:40]!r}",
                               name) from None
+    except OverflowError:  # a JSON whole number beyond the float range (10**400)
+        x = math.inf if value > 0 else -math.inf
     if not math.isfinite(x) or not spec.low <= x <= spec.high:
         raise ValidationError(f"{name} must be from {spec.range_text()}, not {x:g}", name)
     if spec.integer:
@@ -68,7 +76,7 @@ def text(name: str, value: Any, required: bool = False, limit: int | None = None
     if not isinstance(value, str):
         raise ValidationError(f"{name} must be text of at most {limit} characters", name)
     value = value.strip()
-    if len(value) > limit or any(ord(c) < 32 and c not in "\t\n" for c in value):
+    if len(value) > limit or any((ord(c) < 32 and c not in "\t\n") or 0x7f <= ord(c) <= 0x9f for c in value):
         raise ValidationError(f"{name} must be text of at most {limit} characters, without control characters",
                               name)
     return value
@@ -78,6 +86,10 @@ def tag(value: Any) -> str:
     t = text("tag", value, required=True, limit=TAG_MAX_CHARS)
     if "\n" in t or "\t" in t:
         raise ValidationError(f"tag must be one line of 1 to {TAG_MAX_CHARS} characters", "tag")
+    hidden = next((c for c in t if unicodedata.category(c) in TAG_REFUSED_CATEGORIES), None)
+    if hidden is not None:
+        raise ValidationError(f"tag must be 1 to {TAG_MAX_CHARS} visible characters; U+{ord(hidden):04X} is a "
+                              "control, invisible or direction-changing character", "tag")
     return t
 
 
@@ -85,10 +97,15 @@ def identifier(name: str, value: Any, required: bool = True) -> int | None:
     if value is None and not required:
         return None
     if isinstance(value, bool) or not isinstance(value, int) or not 1 <= value <= 2 ** 62:
-        if isinstance(value, str) and value.strip().isdigit() and 1 <= int(value) <= 2 ** 62:
+        # ASCII digits only: str.isdigit() also accepts '²', which int() refuses
+        if isinstance(value, str) and _ascii_digits(value.strip(), 19) and 1 <= int(value) <= 2 ** 62:
             return int(value)
         raise ValidationError(f"{name} must be a positive whole number (a record id)", name)
     return value
+
+
+def _ascii_digits(text: str, max_chars: int) -> bool:
+    return 0 < len(text) <= max_chars and text.isascii() and text.isdigit()
 
 
 def client_id(value: Any) -> str:

@@ -86,6 +86,7 @@ def int_param(args: dict, name: str, low: int, high: int, default: int | None = 
     value = args.get(name)
     if value is None or value == "":
         return default
-    if not value.isdigit() or not low <= int(value) <= high:
+    # ASCII digits only (str.isdigit() also accepts '²', which int() refuses), short enough for int()
+    if not (len(value) <= 19 and value.isascii() and value.isdigit()) or not low <= int(value) <= high:
         raise ApiError(400, "invalid_input", f"{name} must be a whole number from {low} to {high}", name)
     return int(value)

@@ -40,7 +40,23 @@ def json_body() -> dict[str, Any]:
         raise ApiError(400, "invalid_json", "the body is not valid UTF-8 JSON") from None
     if not isinstance(data, dict):
         raise ApiError(400, "invalid_json", "the body must be a JSON object")
+    if b"\\u" in raw and _has_lone_surrogate(data):
+        raise ApiError(400, "invalid_json", "the body holds an unpaired UTF-16 surrogate escape (\\ud800 to "
+                                            "\\udfff alone), which is no character")
     return data
+
+
+def _has_lone_surrogate(data: Any) -> bool:
+    """True when a string of the parsed body (key or value) cannot be written as UTF-8.
+
+    Only a ``\\u`` escape can produce one (the raw body is valid UTF-8); left in, it
+    broke the database write or the error message that quoted it (500).
+    """
+    try:
+        json.dumps(data, ensure_ascii=False).encode("utf-8")
+    except UnicodeEncodeError:
+        return True
+    return False
 
 
 def register(app: Flask) -> None:
