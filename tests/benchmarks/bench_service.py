@@ -111,7 +111,7 @@ def wrk(base, script_text, seconds, tmp) -> dict:
     return parse_wrk(out)
 
 
-def seed(db: Database, motor_id: int, n: int, date: str, spread_days: int = 1) -> None:
+def fill_readings(db: Database, motor_id: int, n: int, date: str, spread_days: int = 1) -> None:
     """Insert n interpreted readings quickly: one engine batch, one transaction."""
     with db.read() as conn:
         rev = conn.execute(motor_revisions.select().where(motor_revisions.c.motor_id == motor_id)).mappings().first()
@@ -166,7 +166,9 @@ def main() -> int:
     parser.add_argument("--seconds", type=int, default=10)
     parser.add_argument("--day-rows", type=int, default=10_000)
     parser.add_argument("--export-rows", type=int, default=100_000)
+    parser.add_argument("--json", metavar="PATH", help="also write the figures as JSON to PATH")
     args = parser.parse_args()
+    figures: dict = {"connections": 16, "seconds": args.seconds}
     tmp = tempfile.mkdtemp(prefix="slipwise-bench-")
     env = {"SLIPWISE_DATA_DIR": str(Path(tmp) / "data")}
     schema = None
@@ -210,19 +212,23 @@ def main() -> int:
             print(f"   POST /api/v1/readings  {submit['rps']:8.0f} req/s  p99 {submit['p99_ms']:6.1f} ms  "
                   f"errors {submit['errors']}")
             print(f"   ratio {ratio:.2f} (goal >= 0.4, zero errors, p99 <= 100 ms)")
+            figures.update(trivial_rps=trivial["rps"], trivial_p99_ms=trivial["p99_ms"], trivial_errors=trivial["errors"],
+                           submit_rps=submit["rps"], submit_p99_ms=submit["p99_ms"], submit_errors=submit["errors"],
+                           submit_ratio=ratio)
         else:
             print("1. skipped: wrk is not installed (apt-get install -y wrk)")
 
         db = Database(url, schema=schema)
-        seed(db, motor["id"], args.day_rows, "2025-04-01")
+        fill_readings(db, motor["id"], args.day_rows, "2025-04-01")
         elapsed, (status, body) = median_time(lambda: call(base, "GET", "/api/v1/readings?date=2025-04-01", token), 5)
         count = json.loads(body)["count"]
         print(f"2. day's log: {count} readings, {len(body) / 1e6:.1f} MB of JSON in {elapsed * 1000:.0f} ms "
               "(median of 5; goal <= 300 ms)")
+        figures.update(day_log_readings=count, day_log_mb=len(body) / 1e6, day_log_ms=elapsed * 1000)
 
         more = args.export_rows - count
         if more > 0:
-            seed(db, motor["id"], more, "2025-05-01", spread_days=20)
+            fill_readings(db, motor["id"], more, "2025-05-01", spread_days=20)
         elapsed_export, (status, csv_bytes) = median_time(lambda: call(base, "GET", "/api/v1/export.csv", token), 3)
         import io
 
@@ -232,6 +238,8 @@ def main() -> int:
         print(f"3. export: {len(frame)} readings x {frame.shape[1]} columns, {len(csv_bytes) / 1e6:.0f} MB in "
               f"{elapsed_export:.2f} s over HTTP; pandas to_csv of the same frame {elapsed_pandas:.2f} s; "
               f"ratio {elapsed_export / elapsed_pandas:.2f} (goal <= 2)")
+        figures.update(export_readings=len(frame), export_columns=frame.shape[1], export_mb=len(csv_bytes) / 1e6,
+                       export_s=elapsed_export, pandas_to_csv_s=elapsed_pandas, export_ratio=elapsed_export / elapsed_pandas)
         db.dispose()
     finally:
         server.terminate()
@@ -242,6 +250,9 @@ def main() -> int:
                 conn.exec_driver_sql(f"DROP SCHEMA {schema} CASCADE")
             admin.dispose()
         shutil.rmtree(tmp, ignore_errors=True)
+    figures["database"] = "postgresql" if schema else "sqlite"
+    if args.json:
+        Path(args.json).write_text(json.dumps(figures, indent=2))
     return 0
 
 
