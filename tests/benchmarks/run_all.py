@@ -1,6 +1,6 @@
 """Every benchmark in one command; writes tests/benchmarks/RESULTS.md and prints it.
 
-    .venv/bin/python tests/benchmarks/run_all.py            # the full run, about 6 minutes on 2 cores
+    .venv/bin/python tests/benchmarks/run_all.py            # the full run, about 4 minutes on 2 cores
     .venv/bin/python tests/benchmarks/run_all.py --quick    # short runs, to check that it works
 
 Runs, each as its own process (so no run warms another's caches):
@@ -156,7 +156,7 @@ def table(m: dict, engine: dict, service: dict, page: dict, load: dict, quick: b
         f"database {service.get('database', 'sqlite')}; load average before the run {m['load_average_before']}. "
         f"Date: {m['date']}." + (" **Quick run (shortened): not the published figures.**" if quick else ""),
         "",
-        "Re-run: `.venv/bin/python tests/benchmarks/run_all.py` (about 6 minutes; `DATABASE_URL=postgresql+psycopg://...` "
+        "Re-run: `.venv/bin/python tests/benchmarks/run_all.py` (about 4 minutes; `DATABASE_URL=postgresql+psycopg://...` "
         "runs the service and load benchmarks on PostgreSQL). Server: `slipwise serve` (gunicorn, 2 workers x 4 "
         "threads) on loopback; load generator wrk.",
         "",
