@@ -22,7 +22,7 @@ CLIENTS = 8
 ACKS_BETWEEN_KILLS = 40
 
 
-@pytest.fixture(params=["sqlite", "postgresql"])
+@pytest.fixture(params=["sqlite", pytest.param("postgresql", marks=pytest.mark.postgres)])
 def backend(request, tmp_path):
     b = Backend(request.param, tmp_path)
     yield b
