@@ -169,6 +169,16 @@ def _check_range(values, spec: C.NumberField, errors: _Errors):
         errors.add(np.isnan(values), spec.name, lambda i: f"{spec.name} is required ({spec.range_text()})")
 
 
+def _parse_numbers(specs, cols: Mapping[str, Any], n: int, errors: _Errors, into: dict) -> None:
+    """Numeric contract fields: parsed, defaulted, range-checked, stored under their names."""
+    for spec in specs:
+        values = _to_float(_column(cols, spec.name, n), n, spec.name, errors)
+        if spec.default is not None:
+            values = np.where(np.isnan(values), spec.default, values)
+        _check_range(values, spec, errors)
+        into[spec.name] = values
+
+
 def _parse_text(raw, n: int):
     """Stripped text per row ("" for blank), decided per distinct value."""
     if raw is None:
@@ -244,12 +254,7 @@ def _parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[_Parsed, _Errors
     errors.add(np.array([any(ch in _CONTROL for ch in t) for t in tag], dtype=bool), "tag",
                lambda i: "tag contains control characters; use printable text only")
     p["tag"] = tag
-    for spec in C.NAMEPLATE_NUMBERS:
-        values = _to_float(_column(cols, spec.name, n), n, spec.name, errors)
-        if spec.default is not None:
-            values = np.where(np.isnan(values), spec.default, values)
-        _check_range(values, spec, errors)
-        p[spec.name] = values
+    _parse_numbers(C.NAMEPLATE_NUMBERS, cols, n, errors, p)
     for spec in C.NAMEPLATE_CHOICES:
         p[spec.name] = _parse_choice(_column(cols, spec.name, n), n, spec, errors, upper=spec.name == "design")
 
@@ -378,12 +383,7 @@ def _derive_nameplates(p: _Parsed, ok: np.ndarray) -> None:
 def _parse_readings(cols: Mapping[str, Any], n: int, plate: _Parsed, errors: _Errors) -> _Parsed:
     """Reading fields per row; ``plate`` holds the nameplate values broadcast to rows."""
     r = _Parsed()
-    for spec in C.READING_NUMBERS:
-        values = _to_float(_column(cols, spec.name, n), n, spec.name, errors)
-        if spec.default is not None:
-            values = np.where(np.isnan(values), spec.default, values)
-        _check_range(values, spec, errors)
-        r[spec.name] = values
+    _parse_numbers(C.READING_NUMBERS, cols, n, errors, r)
     r["taken_at"] = _parse_text(_column(cols, "taken_at", n), n)
     v_mean, v_count = _nanmean_present([r[f] for f in C.VOLTAGE_FIELDS])
     i_mean, i_count = _nanmean_present([r[f] for f in C.CURRENT_FIELDS])
