@@ -20,6 +20,9 @@ from .schema import REVISION_NAMEPLATE_FIELDS
 READING_NUMBER_FIELDS = tuple(f for f in READING_FIELDS if f != "taken_at")
 TEXT_LIMITS = {"site": 120, "location": 200, "description": 2000, "comment": 2000}
 TAKEN_AT_EARLIEST = datetime(2000, 1, 1, tzinfo=timezone.utc)
+# Record ids are INTEGER columns: 32-bit on PostgreSQL, so a larger id can never exist (and sent
+# to PostgreSQL it fails as "integer out of range" instead of finding nothing).
+MAX_ID = 2 ** 31 - 1
 # Unicode categories a tag may not hold: controls (C0, DEL, C1), format characters (zero-width space,
 # byte order mark, the bidirectional overrides that reorder what is shown - "Trojan Source",
 # CVE-2021-42574), line and paragraph separators, private use. Each would let two tags that look
@@ -96,11 +99,11 @@ def tag(value: Any) -> str:
 def identifier(name: str, value: Any, required: bool = True) -> int | None:
     if value is None and not required:
         return None
-    if isinstance(value, bool) or not isinstance(value, int) or not 1 <= value <= 2 ** 62:
+    if isinstance(value, bool) or not isinstance(value, int) or not 1 <= value <= MAX_ID:
         # ASCII digits only: str.isdigit() also accepts '²', which int() refuses
-        if isinstance(value, str) and _ascii_digits(value.strip(), 19) and 1 <= int(value) <= 2 ** 62:
+        if isinstance(value, str) and _ascii_digits(value.strip(), 19) and 1 <= int(value) <= MAX_ID:
             return int(value)
-        raise ValidationError(f"{name} must be a positive whole number (a record id)", name)
+        raise ValidationError(f"{name} must be a record id: a whole number from 1 to {MAX_ID}", name)
     return value
 
 

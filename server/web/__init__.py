@@ -22,7 +22,7 @@ from server.store import Database, sqlite_url
 from server.store.errors import UnavailableError
 
 from . import auth, errors, export, misc, motors, pages, readings, security
-from .params import IdConverter, PagePathConverter
+from .params import IdConverter, PagePathConverter, ids_in_range
 from .state import State
 
 API_PREFIX = "/api/v1"
@@ -107,6 +107,7 @@ def create_app(test_config: Mapping[str, Any] | None = None) -> Flask:
 
     app.url_map.converters["id"] = IdConverter
     app.url_map.converters["path"] = PagePathConverter
+    app.url_value_preprocessor(ids_in_range)
     app.url_map.strict_slashes = False
     errors.register(app)
     security.register(app)

@@ -54,7 +54,7 @@ def day_log():
     args = query(("date", "site", "flag", "technician", "motor_id", "limit"))
     filters = dict(date=date_param(args), site=text_param(args, "site"), flag=flag_param(args),
                    technician=text_param(args, "technician", 64),
-                   motor_id=int_param(args, "motor_id", 1, 2 ** 62))
+                   motor_id=int_param(args, "motor_id", 1, validation.MAX_ID))
     limit = int_param(args, "limit", 1, LIST_LIMIT, LIST_LIMIT)
     with state().db.read() as conn:
         items, count = store_readings.list_readings_json(conn, limit=limit, **filters)
