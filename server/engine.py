@@ -316,6 +316,20 @@ def _parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[_Parsed, _Errors
                lambda i: f"rated_current_a = {i_r[i]:g} does not fit the nameplate's power, voltage, "
                          f"efficiency and power factor (about {expected_i[i]:.3g} A expected); check the "
                          "nameplate (dual-voltage motors list a current per voltage)")
+    # rotor copper loss alone is s/(1 - s) of the mechanical power: an efficiency that leaves less
+    # than that (plus a tenth for the stator) is not a real motor's
+    with np.errstate(invalid="ignore", divide="ignore"):
+        losses = p_out / eta - p_out
+        rotor_loss = s_r / (1.0 - s_r) * p_out
+        impossible = ~bad_balance & ~np.isnan(losses) & (rotor_loss > 0.9 * losses)
+        eta_max = 1.0 / (1.0 + s_r / (1.0 - s_r) / 0.9)
+    given = np.where(np.isnan(eta_np), "the efficiency implied by its power, current and power factor",
+                     "rated_efficiency_pct")
+    errors.add(impossible, "rated_speed_rpm",
+               lambda i: f"rated_speed_rpm = {n_r[i]:g} means a rated slip of {100 * s_r[i]:.3g} %, which allows "
+                         f"at most {100 * eta_max[i]:.3g} % efficiency (rotor copper loss alone is s/(1-s) of the "
+                         f"output), but {given[i]} is {100 * eta[i]:.3g} %; check the rated speed, current and "
+                         "power factor on the nameplate")
     p["eta_used"], p["pf_used"] = eta, pf
     bd = np.where(np.isnan(p["breakdown_torque_pct"]),
                   typical.lookup(typical.BREAKDOWN_TORQUE_PCT, p["design"]), p["breakdown_torque_pct"])

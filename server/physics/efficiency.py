@@ -55,7 +55,9 @@ def rated_loss_budget(rated_output_w, rated_efficiency, rated_slip, fixed_share,
     -------
     LossBudget
         The stator loss is the remainder, kept at no less than 10 % of the
-        losses by shrinking the core loss (as :func:`circuit.fit_circuit`).
+        losses by shrinking the core loss and then friction and windage; never
+        negative (the engine refuses a nameplate whose rotor loss alone would
+        exceed 90 % of its losses).
     """
     p_out = np.asarray(rated_output_w, dtype=float)
     eta = np.asarray(rated_efficiency, dtype=float)
@@ -65,9 +67,11 @@ def rated_loss_budget(rated_output_w, rated_efficiency, rated_slip, fixed_share,
     fw = np.asarray(friction_windage_share, dtype=float) * fixed
     rotor = s / (1.0 - s) * (p_out + fw)
     stator = losses - fixed - rotor
+    # keep at least 10 % of the losses in the stator: shrink the core loss first, then friction
     shortfall = np.maximum(0.10 * losses - stator, 0.0)
     core = np.maximum(fixed - fw - shortfall, 0.0)
-    stator = losses - core - fw - rotor
+    fw = np.maximum(fw - np.maximum(shortfall - (fixed - fw), 0.0), 0.0)
+    stator = np.maximum(losses - core - fw - rotor, 0.0)
     return LossBudget(core, fw, stator, rotor)
 
 

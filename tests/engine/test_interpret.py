@@ -169,6 +169,10 @@ def test_validation_names_field_and_range():
         interpret_one(rec(rated_current_a=60))          # power balance broken
     assert exc.value.field == "rated_current_a"
     with pytest.raises(InputError) as exc:
+        # 6.2 % rated slip cannot go with 95 % efficiency: rotor copper loss alone is s/(1-s) of output
+        interpret_one(rec(rated_speed_rpm=1407, rated_efficiency_pct=95.0, rated_power_factor=None))
+    assert exc.value.field == "rated_speed_rpm" and "at most" in exc.value.message
+    with pytest.raises(InputError) as exc:
         interpret_one(rec(tag="bad\x07tag"))
     assert exc.value.field == "tag"
     with pytest.raises(InputError) as exc:
@@ -237,7 +241,8 @@ def valid_records(draw):
     s_r = draw(st.floats(0.006, 0.05))
     v_r = 400.0 if hz == 50 else 460.0
     pf = draw(st.floats(0.7, 0.9))
-    eta = draw(st.floats(0.8, 0.96))
+    # rotor copper loss s/(1-s) of output must leave room for the other losses (the engine refuses less)
+    eta = draw(st.floats(0.75, min(0.96, 1.0 / (1.0 + s_r / (1.0 - s_r) / 0.9) - 0.01)))
     i_r = kw * 1000 / (np.sqrt(3) * v_r * pf * eta)
     load = draw(st.floats(0.05, 1.3))
     f = hz * draw(st.floats(0.98, 1.02))
@@ -260,4 +265,5 @@ def test_valid_input_gives_finite_results(record):
         if key.startswith("load") or key in ("output_kw", "efficiency_pct"):
             assert r[key] >= 0, key
     assert r["load_low_pct"] <= r["load_pct"] <= r["load_high_pct"]
-    assert 0 < r["efficiency_pct"] < 100
+    # first law: never more out than in, also at the top of the band
+    assert 0 <= r["efficiency_low_pct"] <= r["efficiency_pct"] <= r["efficiency_high_pct"] < 100
