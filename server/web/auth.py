@@ -14,6 +14,7 @@ from server.engine import Thresholds
 from server.store import accounts
 
 from .errors import ApiError
+from .params import has_control_character
 
 from .security import CSRF_HEADER, csrf_ok, csrf_token, json_body
 from .state import state
@@ -91,8 +92,10 @@ def _session_body(user: dict, token: str, expires_at=None) -> dict:
 def login():
     body = json_body()
     username, password = body.get("username"), body.get("password")
-    if not isinstance(username, str) or not username or len(username) > 64:
-        raise ApiError(400, "invalid_input", "username is required: text of 1 to 64 characters", "username")
+    # (control characters: no username has one, and PostgreSQL refuses a NUL in a query)
+    if not isinstance(username, str) or not username or len(username) > 64 or has_control_character(username):
+        raise ApiError(400, "invalid_input", "username is required: text of 1 to 64 characters without control "
+                                             "characters", "username")
     if not isinstance(password, str) or not password or len(password) > accounts.PASSWORD_MAX_CHARS:
         raise ApiError(400, "invalid_input",
                        f"password is required: text of 1 to {accounts.PASSWORD_MAX_CHARS} characters", "password")

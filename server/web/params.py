@@ -82,7 +82,14 @@ def text_param(args: dict, name: str, limit: int = 120) -> str | None:
         return None
     if len(value) > limit:
         raise ApiError(400, "invalid_input", f"{name} must be at most {limit} characters", name)
+    if has_control_character(value):  # stored text never has one; PostgreSQL refuses NUL outright
+        raise ApiError(400, "invalid_input", f"{name} must be text without control characters", name)
     return value
+
+
+def has_control_character(text: str) -> bool:
+    """C0 (NUL included), DEL or C1."""
+    return any(ord(c) < 32 or 0x7f <= ord(c) <= 0x9f for c in text)
 
 
 def flag_param(args: dict) -> str | None:

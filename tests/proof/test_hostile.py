@@ -206,6 +206,13 @@ ATTACKS: dict[str, Attack] = {
     "comment with NUL": Attack("sup", "POST", "/api/v1/readings/{reading}/review",
                                {"decision": "retake", "comment": "look\x00again"}, field="comment"),
     "location with C1": motor_attack(location="roof\x9b1m", field="location"),
+    # NUL in what reaches a query: PostgreSQL refuses it in any text parameter
+    "site filter with NUL": Attack("tech", "GET", "/api/v1/readings?site=Harbour%00Mill", field="site"),
+    "technician filter with NUL": Attack("tech", "GET", "/api/v1/readings?technician=tess%00", field="technician"),
+    "motor list site with NUL": Attack("tech", "GET", "/api/v1/motors?site=%00", field="site"),
+    "export site with ESC": Attack("sup", "GET", "/api/v1/export.csv?site=%1B%5B2J", field="site"),
+    "login username with NUL": Attack("anon", "POST", "/api/v1/session", {"username": "tess\x00", "password": "x" * 10},
+                                      field="username"),
     "interpret tag with bidi override": Attack("tech", "POST", "/api/v1/interpret",
                                                {**NAMEPLATE, **READING, "tag": "PMP\u202e"}, field="tag"),
     # --- formula text with a CR inside (a leading one is trimmed, see FORMULAS): CR is a control character
