@@ -28,8 +28,8 @@ from server import engine  # noqa: E402
 from server.cli_analyze import analyze_frame  # noqa: E402
 
 
-def make_frame(rows: int, nameplates: int, seed: int = 7) -> pd.DataFrame:
-    rng = np.random.default_rng(seed)
+def make_frame(rows: int, nameplates: int, random_state: int = 7) -> pd.DataFrame:
+    rng = np.random.default_rng(random_state)
     kw = np.round(np.exp(rng.uniform(np.log(0.75), np.log(250), nameplates)), 2)
     hz = rng.choice([50.0, 60.0], nameplates)
     poles = rng.choice([2, 4, 6], nameplates, p=[0.3, 0.5, 0.2])

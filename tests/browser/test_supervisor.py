@@ -18,7 +18,7 @@ SITE = "Northgate water works"
 SPEEDS = [1492, 1470, 1480, 1461]
 
 
-def seed(service):
+def fill_day(service):
     motors = [service.motor(f"NW-{n} blower", site=SITE) for n in (1, 2)]
     ids = []
     for i, speed in enumerate(SPEEDS):
@@ -32,7 +32,7 @@ def seed(service):
 
 
 def test_supervisor_review_and_csv_desktop(new_context, service):
-    motors, ids = seed(service)
+    motors, ids = fill_day(service)
     ctx = new_context(DESKTOP)
     page = ctx.new_page()
     sign_in(page, "sam")

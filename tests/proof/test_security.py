@@ -33,6 +33,7 @@ from server.store.types import utcnow
 from server.web.auth import ADDRESS_FREE_FAILURES, COOKIE_NAME, USER_FREE_FAILURES
 from tests.service.conftest import MOTOR, PASSWORDS, READING, Api, count_rows, make_app, reading_body
 from tests.service.conftest import app, database, motor, reading, static_dir, sup, tech  # noqa: F401  (fixtures)
+from tests.service.test_roles import ACCESS, RANK  # one route policy for both matrices
 
 TABLES = ("users", "api_tokens", "sessions", "login_throttle", "sites", "motors", "motor_revisions", "readings",
           "reading_flags", "reviews", "audit_log")
@@ -40,30 +41,7 @@ WRITES = frozenset({"POST", "PUT", "DELETE"})
 
 # route -> the least role that may use it (the policy of issue 3: technicians submit, see the day's log and
 # register the motor in front of them; supervisors also edit nameplates, review, export and read the audit)
-POLICY = {
-    ("POST", "/api/v1/session"): "anyone",
-    ("GET", "/api/v1/session"): "technician",
-    ("DELETE", "/api/v1/session"): "anyone",
-    ("GET", "/api/v1/motors"): "technician",
-    ("POST", "/api/v1/motors"): "technician",
-    ("GET", "/api/v1/motors/<id:motor_id>"): "technician",
-    ("PUT", "/api/v1/motors/<id:motor_id>"): "supervisor",
-    ("POST", "/api/v1/readings"): "technician",
-    ("GET", "/api/v1/readings"): "technician",
-    ("GET", "/api/v1/readings/<id:reading_id>"): "technician",
-    ("GET", "/api/v1/readings/<id:reading_id>/torque-speed.svg"): "technician",
-    ("POST", "/api/v1/readings/<id:reading_id>/review"): "supervisor",
-    ("GET", "/api/v1/export.csv"): "supervisor",
-    ("POST", "/api/v1/interpret"): "technician",
-    ("GET", "/api/v1/health"): "anyone",
-    ("GET", "/api/v1/audit"): "supervisor",
-    ("GET", "/api/v1/openapi.json"): "anyone",
-    ("GET", "/"): "anyone",
-    ("GET", "/sw.js"): "anyone",
-    ("GET", "/static/<path:path>"): "anyone",
-    ("GET", "/<path:path>"): "anyone",
-}
-RANK = {"anyone": 0, "technician": 1, "supervisor": 2}
+POLICY = ACCESS
 OK = {"GET": 200, "POST": 201, "PUT": 200, "DELETE": 204}
 OK_EXCEPTIONS = {("POST", "/api/v1/interpret"): 200}
 
