@@ -38,6 +38,9 @@ def make_frame(rows: int, nameplates: int, random_state: int = 7) -> pd.DataFram
     n_r = np.round(ns * (1 - slip_r))
     v_r = np.where(hz == 50, 400.0, 460.0)
     eta = np.clip(np.round(95.5 - 6.0 * np.exp(-kw / 8.0) - rng.uniform(0, 2, nameplates), 1), 70, 97)
+    # a real motor's rated slip leaves room for its efficiency (rotor copper loss is s/(1-s) of output)
+    s_real = 1 - n_r / ns
+    eta = np.minimum(eta, np.floor(1000.0 / (1.0 + s_real / (1.0 - s_real) / 0.9)) / 10.0 - 1.0)
     pf = np.clip(np.round(0.88 - 0.12 * np.exp(-kw / 6.0) - rng.uniform(0, 0.05, nameplates), 2), 0.6, 0.92)
     i_r = np.round(kw * 1000 / (np.sqrt(3) * v_r * pf * eta / 100), 1)
     plate = pd.DataFrame({
