@@ -12,7 +12,7 @@ import math
 import os
 import threading
 from collections import OrderedDict
-from typing import Any, Iterable, Mapping, Sequence
+from typing import Any, Mapping, Sequence
 
 import numpy as np
 import pandas as pd
@@ -54,9 +54,6 @@ def thresholds_from_mapping(values: Mapping[str, Any] | None) -> Thresholds:
     if bad:
         raise InputError(*bad[0])
     return th
-
-
-Thresholds.from_mapping = staticmethod(thresholds_from_mapping)  # type: ignore[attr-defined]
 
 
 # --------------------------------------------------------------------------- parsing

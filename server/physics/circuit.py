@@ -30,6 +30,7 @@ import numpy as np
 from scipy.optimize import elementwise
 
 from .units import RPM_TO_RAD_S, SQRT3
+from .efficiency import rated_loss_budget
 from .speed import synchronous_speed_rpm
 
 
@@ -154,11 +155,11 @@ def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequenc
 
     Notes
     -----
-    Loss budget at the rated point: ``P_in = P_out / eta``, losses
-    ``P_L = P_in - P_out``; air-gap power ``P_ag = (P_out + P_fw) / (1 - s)``;
-    rotor copper loss ``s P_ag``; stator copper (with stray load) loss is the
-    remainder, never below 10 % of ``P_L`` (the fixed share is reduced
-    instead). Breakdown torque of the circuit from its Thevenin equivalent:
+    Loss budget at the rated point from :func:`efficiency.rated_loss_budget`:
+    losses ``P_L = P_out / eta - P_out``; rotor copper loss ``s P_ag`` with
+    air-gap power ``P_ag = (P_out + P_fw) / (1 - s)``; stator copper (with
+    stray load) loss the remainder, never below 10 % of ``P_L`` (the fixed
+    losses give way instead). Breakdown torque of the circuit from its Thevenin equivalent:
     ``T_max = 3 V_th^2 / (2 w_s (R_th + sqrt(R_th^2 + (X_th + X2)^2)))``.
 
     References
@@ -180,18 +181,10 @@ def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequenc
     omega_sync = n_s * RPM_TO_RAD_S
     omega_rated = n_r * RPM_TO_RAD_S
     v_phase = v_ll / SQRT3
-    p_in = p_out / eta
-    losses = p_in - p_out
-    p_fixed = fixed_share * losses
-    p_fw = fw_share * p_fixed
-    p_ag = (p_out + p_fw) / (1.0 - slip)
-    p_cu2 = slip * p_ag
-    p_cu1 = losses - p_fixed - p_cu2
-    # keep at least 10 % of the losses in the stator: shrink the core loss first
-    shortfall = np.maximum(0.10 * losses - p_cu1, 0.0)
-    p_core = np.maximum(p_fixed - p_fw - shortfall, 0.0)
-    p_cu1 = losses - p_core - p_fw - p_cu2
-    r1 = np.maximum(p_cu1, 0.0) / (3.0 * i_r ** 2)
+    # the same loss split as the efficiency model, so the two never disagree
+    budget = rated_loss_budget(p_out, eta, slip, fixed_share, fw_share)
+    p_core, p_fw, p_cu1 = budget.core_w, budget.friction_windage_w, budget.stator_w
+    r1 = p_cu1 / (3.0 * i_r ** 2)
     phi = np.arccos(np.clip(pf, 0.0, 1.0))
     i1 = i_r * (np.cos(phi) - 1j * np.sin(phi))
 

@@ -69,12 +69,12 @@ def load_secret(data_dir: Path) -> bytes:
 def load_thresholds(value: Any):
     if value is None or value == "":
         return None
-    from server.engine import Thresholds
+    from server.engine import thresholds_from_mapping
     if isinstance(value, Mapping):
-        return Thresholds.from_mapping(dict(value))
+        return thresholds_from_mapping(dict(value))
     if isinstance(value, str) and value.lstrip().startswith("{"):
-        return Thresholds.from_mapping(json.loads(value))
-    return Thresholds.from_mapping(json.loads(Path(value).read_text()))
+        return thresholds_from_mapping(json.loads(value))
+    return thresholds_from_mapping(json.loads(Path(value).read_text()))
 
 
 def resolved_database_url(config: Mapping[str, Any]) -> str:

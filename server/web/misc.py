@@ -4,10 +4,10 @@ from __future__ import annotations
 
 import json
 
-from flask import Blueprint, Response, g, jsonify
+from flask import Blueprint, Response, jsonify
 
 from server.contract import ENGINE_VERSION, INPUT_FIELDS
-from server.store import SCHEMA_VERSION, audit, validation
+from server.store import audit, validation
 from server.store import motors as store_motors
 from server.store.readings import engine_record, to_json
 from server.store.types import utcnow

@@ -5,7 +5,8 @@ import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
 from server import contract as C
-from server.engine import InputError, Thresholds, interpret_columns, interpret_one, interpret_records
+from server.engine import (InputError, Thresholds, interpret_columns, interpret_one, interpret_records,
+                           thresholds_from_mapping)
 from server.physics.units import HORSEPOWER_W
 
 # an IEC 11 kW 4-pole pump motor; P = sqrt(3) 400 V 21.5 A 0.81 0.914 = 11.0 kW
@@ -194,9 +195,9 @@ def test_thresholds_override():
     r = interpret_one(rec(), Thresholds(underloaded_pct=80))
     assert "underloaded" in r["flags"]
     with pytest.raises(InputError):
-        Thresholds.from_mapping({"underloaded_pct": 500})
+        thresholds_from_mapping({"underloaded_pct": 500})
     with pytest.raises(InputError):
-        Thresholds.from_mapping({"no_such": 1})
+        thresholds_from_mapping({"no_such": 1})
 
 
 def test_array_equals_scalar():
