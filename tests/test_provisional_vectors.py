@@ -15,7 +15,7 @@ from pathlib import Path
 
 import pytest
 
-from server.engine import interpret_one
+from slipwise.engine import interpret_one
 
 VECTORS_PATH = Path(__file__).parent / "vectors" / "provisional.json"
 VECTORS = json.loads(VECTORS_PATH.read_text(encoding="utf-8"))

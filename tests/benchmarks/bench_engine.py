@@ -22,10 +22,10 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
+sys.path.insert(0, str(Path(__file__).resolve().parents[2] / "server"))
 
-from server import engine  # noqa: E402
-from server.cli_analyze import analyze_frame  # noqa: E402
+from slipwise import engine  # noqa: E402
+from slipwise.cli_analyze import analyze_frame  # noqa: E402
 
 
 def make_frame(rows: int, nameplates: int, random_state: int = 7) -> pd.DataFrame:

@@ -40,7 +40,7 @@ from bench_service import MOTOR, call, cli, fill_readings, free_port, parse_wrk 
 
 from sqlalchemy import text  # noqa: E402
 
-from server.store import Database, sqlite_url  # noqa: E402
+from slipwise.store import Database, sqlite_url  # noqa: E402
 
 FINISHED_DAY, TODAY = "2025-06-02", "2025-06-03"
 FINISHED_DAY_READINGS = 300
@@ -185,7 +185,7 @@ def run(seconds: int, connections: int, trivial_seconds: int) -> dict:
     tech_token = cli(["token", "create", "tova"], env).strip()
     port = free_port()
     base = f"http://127.0.0.1:{port}"
-    log = open(tmp / "server.log", "w")
+    log = open(tmp / "slipwise.log", "w")
     server = subprocess.Popen([str(Path(sys.executable).with_name("slipwise")), "serve", "--port", str(port)],
                               env={**os.environ, **env}, stdout=log, stderr=subprocess.STDOUT, start_new_session=True)
     db = None

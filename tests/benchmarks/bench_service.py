@@ -35,14 +35,14 @@ import uuid
 from pathlib import Path
 
 REPO = Path(__file__).resolve().parents[2]
-sys.path.insert(0, str(REPO))
+sys.path.insert(0, str(REPO / "server"))
 
-from server.contract import NAMEPLATE_FIELDS  # noqa: E402
-from server.engine import interpret_records  # noqa: E402
-from server.store import Database, sqlite_url  # noqa: E402
-from server.store.readings import engine_record, to_json  # noqa: E402
-from server.store.schema import motor_revisions, reading_flags, readings  # noqa: E402
-from server.store.types import utcnow  # noqa: E402
+from slipwise.contract import NAMEPLATE_FIELDS  # noqa: E402
+from slipwise.engine import interpret_records  # noqa: E402
+from slipwise.store import Database, sqlite_url  # noqa: E402
+from slipwise.store.readings import engine_record, to_json  # noqa: E402
+from slipwise.store.schema import motor_revisions, reading_flags, readings  # noqa: E402
+from slipwise.store.types import utcnow  # noqa: E402
 
 SLIPWISE = str(Path(sys.executable).with_name("slipwise"))
 MOTOR = {"site": "Bench Works", "tag": "B-1", "rated_power_kw": 15, "rated_voltage_v": 400, "rated_current_a": 28.5,
@@ -186,7 +186,7 @@ def main() -> int:
     token = cli(["token", "create", "bench"], env).strip()
     port = free_port()
     base = f"http://127.0.0.1:{port}"
-    log = open(Path(tmp) / "server.log", "w")
+    log = open(Path(tmp) / "slipwise.log", "w")
     server = subprocess.Popen([SLIPWISE, "serve", "--port", str(port)], env={**os.environ, **env}, stdout=log,
                               stderr=subprocess.STDOUT, start_new_session=True)
     try:

@@ -1,6 +1,6 @@
 """A real slipwise server on loopback and Debian's Chromium driven by Playwright.
 
-The server is the Flask app from ``server.web.create_app`` on a temporary SQLite
+The server is the Flask app from ``slipwise.web.create_app`` on a temporary SQLite
 database, served by werkzeug's threaded HTTP server on a free port in a
 thread of this process. Users and a bearer token are created through the
 store; the tests then act through the page and check through the HTTP API.
@@ -66,8 +66,8 @@ def service(tmp_path_factory):
 
     from werkzeug.serving import make_server
 
-    from server.store import accounts, sqlite_url
-    from server.web import create_app
+    from slipwise.store import accounts, sqlite_url
+    from slipwise.web import create_app
 
     data = tmp_path_factory.mktemp("slipwise-browser")
     app = create_app({"DATA_DIR": str(data), "DATABASE_URL": sqlite_url(data / "browser.sqlite3"),

@@ -10,7 +10,7 @@ from urllib.parse import urlsplit
 
 import pytest
 
-from server.contract import CHOICE_FIELDS, NUMBER_FIELDS
+from slipwise.contract import CHOICE_FIELDS, NUMBER_FIELDS
 
 from .conftest import TABLET, sign_in, wait_for_worker
 

@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from server import contract as C
+from slipwise import contract as C
 
 ROOT = Path(__file__).resolve().parents[2]
 SAMPLES = ROOT / "field_samples"
@@ -16,7 +16,7 @@ SAMPLES = ROOT / "field_samples"
 
 def run(*args, cwd=None):
     exe = Path(sys.executable).with_name("slipwise")
-    cmd = [str(exe)] if exe.exists() else [sys.executable, "-m", "server.cli"]
+    cmd = [str(exe)] if exe.exists() else [sys.executable, "-m", "slipwise.cli"]
     return subprocess.run(cmd + ["analyze", *map(str, args)], capture_output=True, text=True, cwd=cwd or ROOT,
                           timeout=120, env={**os.environ, "PYTHONPATH": str(ROOT)})
 

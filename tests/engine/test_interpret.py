@@ -4,10 +4,10 @@ import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
-from server import contract as C
-from server.engine import (InputError, Thresholds, interpret_columns, interpret_one, interpret_records,
+from slipwise import contract as C
+from slipwise.engine import (InputError, Thresholds, interpret_columns, interpret_one, interpret_records,
                            thresholds_from_mapping)
-from server.physics.units import HORSEPOWER_W
+from slipwise.physics.units import HORSEPOWER_W
 
 # an IEC 11 kW 4-pole pump motor; P = sqrt(3) 400 V 21.5 A 0.81 0.914 = 11.0 kW
 PUMP = dict(tag="P-101", rated_power_kw=11, rated_voltage_v=400, rated_current_a=21.5, rated_frequency_hz=50,

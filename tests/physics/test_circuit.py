@@ -13,7 +13,7 @@ approximate Thevenin equivalent X_TH ~ X1, so ours differ by ~1-3 %).
 import numpy as np
 import pytest
 
-from server.physics import circuit as ckt
+from slipwise.physics import circuit as ckt
 
 RPM = 2 * np.pi / 60
 

@@ -28,8 +28,8 @@ import time
 import numpy as np
 import pytest
 
-from server.physics import efficiency_class as ec
-from server.physics.efficiency_class import (
+from slipwise.physics import efficiency_class as ec
+from slipwise.physics.efficiency_class import (
     efficiency_class,
     nominal_efficiency_pct,
     typical_efficiency_pct,

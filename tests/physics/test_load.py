@@ -2,7 +2,7 @@ import numpy as np
 import pytest
 from hypothesis import given, strategies as st
 
-from server.physics import load
+from slipwise.physics import load
 
 
 def slip_load(slip_rpm, rated_slip_rpm, v_ratio=1.0, speed_ratio=1.0, kw=18.65, minutes=60.0 * 8):

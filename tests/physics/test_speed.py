@@ -1,7 +1,7 @@
 import numpy as np
 import pytest
 
-from server.physics import speed
+from slipwise.physics import speed
 
 
 def test_synchronous_speed_definition():

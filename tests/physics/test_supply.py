@@ -2,7 +2,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from server.physics import supply
+from slipwise.physics import supply
 
 
 def test_nema_unbalance_worked_example():

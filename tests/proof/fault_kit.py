@@ -25,7 +25,7 @@ from pathlib import Path
 import pytest
 from sqlalchemy import create_engine, text
 
-from server.store import normalise_url, sqlite_url
+from slipwise.store import normalise_url, sqlite_url
 
 REPO = Path(__file__).resolve().parents[2]
 SLIPWISE = str(Path(sys.executable).with_name("slipwise"))

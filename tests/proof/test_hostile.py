@@ -18,8 +18,8 @@ from typing import Any
 
 import pytest
 
-from server.store import accounts
-from server.web.pages import DEFAULT_STATIC_DIR
+from slipwise.store import accounts
+from slipwise.web.pages import DEFAULT_STATIC_DIR
 from tests.service.conftest import MOTOR, READING, count_rows, make_app, reading_body
 from tests.service.conftest import anon, app, database, motor, reading, static_dir, sup, tech  # noqa: F401
 
@@ -324,37 +324,37 @@ def test_numeric_strings_are_numbers(tech, motor, value, stored):
 
 
 # --- path traversal in static paths ----------------------------------------------------------------
-ENGINE_MARK = "The interpretation engine: contract fields in, contract results out."
+ENGINE_MARK = "``slipwise``: the command line. Parses options, calls the store and the web app, prints."
 TRAVERSALS = {
-    "dot-dot": "/static/../server/engine.py",
-    "dot-dot at root": "/../server/engine.py",
-    "encoded dots": "/static/%2e%2e/server/engine.py",
-    "encoded dots upper case": "/static/%2E%2E/server/engine.py",
-    "encoded slash": "/static/..%2fserver%2fengine.py",
-    "all encoded": "/static/%2e%2e%2fserver%2fengine.py",
-    "double encoded": "/static/%252e%252e/server/engine.py",
-    "backslash": "/static/..\\server\\engine.py",
-    "encoded backslash": "/static/..%5cserver%5cengine.py",
-    "overlong utf-8 dots": "/static/%c0%ae%c0%ae/server/engine.py",
-    "dot-dot-dot-dot": "/static/....//server/engine.py",
-    "two levels from a folder": "/static/js/../../server/engine.py",
-    "dot then dot-dot": "/static/./../server/engine.py",
-    "root route encoded": "/%2e%2e/server/engine.py",
-    "root route encoded slash": "/..%2fserver/engine.py",
-    "absolute path": f"/static/{DEFAULT_STATIC_DIR.parent}/server/engine.py",
+    "dot-dot": "/static/../server/slipwise/cli.py",
+    "dot-dot at root": "/../server/slipwise/cli.py",
+    "encoded dots": "/static/%2e%2e/server/slipwise/cli.py",
+    "encoded dots upper case": "/static/%2E%2E/server/slipwise/cli.py",
+    "encoded slash": "/static/..%2fserver%2fslipwise%2fcli.py",
+    "all encoded": "/static/%2e%2e%2fserver%2fslipwise%2fcli.py",
+    "double encoded": "/static/%252e%252e/server/slipwise/cli.py",
+    "backslash": "/static/..\\server\\slipwise\\cli.py",
+    "encoded backslash": "/static/..%5cserver%5cslipwise%5ccli.py",
+    "overlong utf-8 dots": "/static/%c0%ae%c0%ae/server/slipwise/cli.py",
+    "dot-dot-dot-dot": "/static/....//server/slipwise/cli.py",
+    "two levels from a folder": "/static/js/../../server/slipwise/cli.py",
+    "dot then dot-dot": "/static/./../server/slipwise/cli.py",
+    "root route encoded": "/%2e%2e/server/slipwise/cli.py",
+    "root route encoded slash": "/..%2fserver/slipwise/cli.py",
+    "absolute path": f"/static/{DEFAULT_STATIC_DIR.parent}/server/slipwise/cli.py",
     "absolute path encoded": "/static/%2fetc%2fpasswd",
-    "NUL byte": "/static/..%00/server/engine.py",
+    "NUL byte": "/static/..%00/server/slipwise/cli.py",
     "NUL before extension": "/static/sw.js%00.py",
-    "via sw.js": "/sw.js/../server/engine.py",
-    "via icons": "/icons/../../server/engine.py",
+    "via sw.js": "/sw.js/../server/slipwise/cli.py",
+    "via icons": "/icons/../../server/slipwise/cli.py",
     "repo file next to static": "/static/../pyproject.toml",
 }
 
 
 @pytest.fixture
 def page_app(database, tmp_path):
-    """The app serving the real static/ folder, with server/engine.py one level up."""
-    assert (DEFAULT_STATIC_DIR.parent / "server" / "engine.py").read_text().count(ENGINE_MARK) == 1
+    """The app serving the real static/ folder, with server/slipwise/cli.py one level up."""
+    assert (DEFAULT_STATIC_DIR.parent / "server" / "slipwise" / "cli.py").read_text().count(ENGINE_MARK) == 1
     app = make_app(database, tmp_path, DEFAULT_STATIC_DIR)
     yield app
     app.extensions["slipwise"].db.dispose()

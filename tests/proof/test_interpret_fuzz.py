@@ -16,9 +16,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import server.web.misc as misc_views
-from server.contract import DESIGNS, DRIVEN_LOADS, FLAG_CODES, INPUT_FIELDS, INTEGER_RESULT_COLUMNS, RESULT_COLUMNS
-from server.contract import TEXT_RESULT_COLUMNS
+import slipwise.web.misc as misc_views
+from slipwise.contract import DESIGNS, DRIVEN_LOADS, FLAG_CODES, INPUT_FIELDS, INTEGER_RESULT_COLUMNS, RESULT_COLUMNS
+from slipwise.contract import TEXT_RESULT_COLUMNS
 from tests.service.conftest import app, database, static_dir, tech  # noqa: F401  (fixtures)
 
 SQRT3 = math.sqrt(3)

@@ -24,10 +24,10 @@ from schemathesis.specs.openapi.checks import (allow_header_conformance, content
                                                response_schema_conformance, status_code_conformance,
                                                unsupported_method)
 
-from server.store import accounts, sqlite_url
-from server.store.schema import api_tokens
-from server.store.types import utcnow
-from server.web import create_app
+from slipwise.store import accounts, sqlite_url
+from slipwise.store.schema import api_tokens
+from slipwise.store.types import utcnow
+from slipwise.web import create_app
 from tests.service.conftest import MOTOR, reading_body
 from tests.service.conftest import app, database, static_dir, sup, tech  # noqa: F401  (fixtures)
 
@@ -161,7 +161,7 @@ def test_as_supervisor(case, seeded, tokens):
 
 def test_documented_examples_are_accepted(seeded, tokens):
     """The request examples in the document are valid requests (schemathesis starts from them)."""
-    from server.web.openapi import EXAMPLES
+    from slipwise.web.openapi import EXAMPLES
     client = seeded.test_client()
     auth = {"Authorization": "Bearer " + TOKENS["supervisor"]}
     want = {("POST", "/api/v1/session", "Login"): 401,  # well-formed; not tess's password here

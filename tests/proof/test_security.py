@@ -27,10 +27,10 @@ from datetime import timedelta
 import pytest
 from sqlalchemy import update
 
-from server.store import accounts
-from server.store.schema import sessions
-from server.store.types import utcnow
-from server.web.auth import ADDRESS_FREE_FAILURES, COOKIE_NAME, USER_FREE_FAILURES
+from slipwise.store import accounts
+from slipwise.store.schema import sessions
+from slipwise.store.types import utcnow
+from slipwise.web.auth import ADDRESS_FREE_FAILURES, COOKIE_NAME, USER_FREE_FAILURES
 from tests.service.conftest import MOTOR, PASSWORDS, READING, Api, count_rows, make_app, reading_body
 from tests.service.conftest import app, database, motor, reading, static_dir, sup, tech  # noqa: F401  (fixtures)
 from tests.service.test_roles import ACCESS, RANK  # one route policy for both matrices

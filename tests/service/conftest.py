@@ -19,8 +19,8 @@ from pathlib import Path
 import pytest
 from sqlalchemy import create_engine
 
-from server.store import accounts, normalise_url, sqlite_url
-from server.web import create_app
+from slipwise.store import accounts, normalise_url, sqlite_url
+from slipwise.web import create_app
 
 DATABASE_URL = os.environ.get("DATABASE_URL")
 ON_POSTGRES = bool(DATABASE_URL) and normalise_url(DATABASE_URL).startswith("postgresql")

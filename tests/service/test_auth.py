@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import hashlib
 
-from server.store import accounts
+from slipwise.store import accounts
 
 from .conftest import PASSWORDS, MOTOR, count_rows
 
@@ -113,7 +113,7 @@ def test_repeated_failures_are_slowed_down(app):
 
 
 def accounts_free() -> int:
-    from server.web.auth import USER_FREE_FAILURES
+    from slipwise.web.auth import USER_FREE_FAILURES
     return USER_FREE_FAILURES
 
 

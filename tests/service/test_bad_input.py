@@ -8,7 +8,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from server.contract import INPUT_FIELDS
+from slipwise.contract import INPUT_FIELDS
 
 from .conftest import MOTOR, count_rows, reading_body
 

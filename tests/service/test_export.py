@@ -7,8 +7,8 @@ import io
 import pandas as pd
 import pytest
 
-from server.contract import RESULT_COLUMNS
-from server.web.export import EXPORT_COLUMNS, neutralise
+from slipwise.contract import RESULT_COLUMNS
+from slipwise.web.export import EXPORT_COLUMNS, neutralise
 
 from .conftest import MOTOR, reading_body
 

@@ -8,9 +8,9 @@ from datetime import datetime, timezone
 import pytest
 from sqlalchemy import inspect
 
-from server.store import Database, SchemaError, SchemaTooNewError
-from server.store import migrations
-from server.store.schema import metadata
+from slipwise.store import Database, SchemaError, SchemaTooNewError
+from slipwise.store import migrations
+from slipwise.store.schema import metadata
 
 from .conftest import make_app, run_cli
 

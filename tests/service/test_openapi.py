@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import re
 
-from server.contract import FLAG_CODES, RESULT_COLUMNS
+from slipwise.contract import FLAG_CODES, RESULT_COLUMNS
 
 
 def _doc(anon):
@@ -85,7 +85,7 @@ def test_responses_match_documented_properties(anon, tech, sup, reading):
     entry = sup.get("/api/v1/audit").get_json()["entries"][0]
     assert set(entry) == set(schemas["AuditList"]["properties"]["entries"]["items"]["properties"])
     # the documented input fields are exactly the accepted ones
-    from server.web.readings import SUBMISSION_FIELDS
+    from slipwise.web.readings import SUBMISSION_FIELDS
     assert set(schemas["ReadingInput"]["properties"]) == set(SUBMISSION_FIELDS)
-    from server.web.motors import MOTOR_FIELDS
+    from slipwise.web.motors import MOTOR_FIELDS
     assert set(schemas["MotorInput"]["properties"]) == set(MOTOR_FIELDS)

@@ -7,7 +7,7 @@ from .conftest import MOTOR, count_rows
 
 def test_session_carries_the_thresholds_in_force(tech):
     body = tech.get("/api/v1/session").get_json()
-    # defaults of server.engine.Thresholds: 40 % underloaded (common practice), rated output overloaded
+    # defaults of slipwise.engine.Thresholds: 40 % underloaded (common practice), rated output overloaded
     assert body["thresholds"]["underloaded_pct"] == 40.0
     assert body["thresholds"]["overloaded_pct"] == 100.0
 

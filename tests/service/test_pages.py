@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from server.web.security import CONTENT_SECURITY_POLICY
+from slipwise.web.security import CONTENT_SECURITY_POLICY
 
 from .conftest import make_app
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import xml.etree.ElementTree as ET
 
-import server.web.readings as views
+import slipwise.web.readings as views
 
 
 def test_svg_picture_is_drawn_once_and_cached(app, tech, reading, monkeypatch):

@@ -6,8 +6,8 @@ import json
 
 import pytest
 
-from server.contract import ENGINE_VERSION, RESULT_COLUMNS
-from server.engine import interpret_one
+from slipwise.contract import ENGINE_VERSION, RESULT_COLUMNS
+from slipwise.engine import interpret_one
 
 from .conftest import MOTOR, READING, count_rows, reading_body
 

@@ -8,9 +8,9 @@ from datetime import date as _date
 from flask import request
 from werkzeug.routing import BaseConverter, PathConverter
 
-from server.contract import FLAG_CODES
-from server.store.errors import NotFoundError
-from server.store.validation import MAX_ID
+from slipwise.contract import FLAG_CODES
+from slipwise.store.errors import NotFoundError
+from slipwise.store.validation import MAX_ID
 
 from .errors import ApiError
 

@@ -17,9 +17,9 @@ import sys
 import uuid
 from pathlib import Path
 
-from server.contract import READING_FIELDS
+from slipwise.contract import READING_FIELDS
 
-DEFAULT_SAMPLES = Path(__file__).resolve().parents[1] / "field_samples"
+DEFAULT_SAMPLES = Path(__file__).resolve().parents[2] / "field_samples"
 DEMO_NAMESPACE = uuid.UUID("6f1c7c1e-4b7a-4d1e-9a57-2d0c5e7f4a10")
 CREDENTIALS_FILE = "demo-accounts.json"
 
@@ -37,13 +37,13 @@ def _rows(path: Path) -> list[dict[str, str]]:
 
 def load(db, samples: Path, data_dir: Path) -> dict:
     """Load people, motors and readings; returns counts and the accounts with their passwords."""
-    from server.engine import InputError, interpret_one
-    from server.store import accounts, validation
-    from server.store import motors as store_motors
-    from server.store import readings as store_readings
-    from server.store.errors import StoreError
-    from server.store.readings import Submission
-    from server.store.types import utcnow
+    from slipwise.engine import InputError, interpret_one
+    from slipwise.store import accounts, validation
+    from slipwise.store import motors as store_motors
+    from slipwise.store import readings as store_readings
+    from slipwise.store.errors import StoreError
+    from slipwise.store.readings import Submission
+    from slipwise.store.types import utcnow
 
     people = _rows(samples / "people.csv")
     motor_rows = _rows(samples / "motors.csv")
@@ -132,8 +132,8 @@ def load(db, samples: Path, data_dir: Path) -> dict:
 
 
 def run_demo(args, data_dir: Path) -> int:
-    from server.store import Database, sqlite_url
-    from server.store.errors import SchemaError
+    from slipwise.store import Database, sqlite_url
+    from slipwise.store.errors import SchemaError
 
     samples = Path(args.samples).resolve() if args.samples else DEFAULT_SAMPLES
     url = args.database_url or sqlite_url(data_dir / "slipwise.sqlite3")
@@ -159,7 +159,7 @@ def run_demo(args, data_dir: Path) -> int:
     sys.stdout.flush()
     if args.no_serve:
         return 0
-    from server.serving import serve
+    from slipwise.serving import serve
     config = {"DATA_DIR": str(data_dir), "DATABASE_URL": url}
     if getattr(args, "thresholds", None):
         config["THRESHOLDS"] = args.thresholds

@@ -11,7 +11,7 @@ _lock = threading.Lock()  # matplotlib's font cache and rcParams are not thread-
 
 
 def render_torque_speed_svg(curve: Mapping[str, Any], title: str) -> bytes:
-    """SVG of the curves returned by ``server.engine.torque_speed_curve``.
+    """SVG of the curves returned by ``slipwise.engine.torque_speed_curve``.
 
     Draws the motor's torque-speed curve at rated and at measured voltage, the
     driven load's torque law, the operating point and the breakdown point.

@@ -24,7 +24,7 @@ class _Server(BaseApplication):
             self.cfg.set(key, value)
 
     def load(self):
-        from server.web import create_app
+        from slipwise.web import create_app
         return create_app(self._app_config)
 
 
@@ -34,7 +34,7 @@ def _bind(host: str, port: int) -> str:
 
 def _url_host(host: str) -> list[str]:
     if host in ("0.0.0.0", "::"):
-        from server.tls import local_addresses
+        from slipwise.tls import local_addresses
         return [a for a in local_addresses() if ":" not in a or host == "::"]
     return [host]
 
@@ -42,9 +42,9 @@ def _url_host(host: str) -> list[str]:
 def serve(args, config: dict[str, Any]) -> int:
     from sqlalchemy.exc import OperationalError
 
-    from server.store import Database, SchemaError
-    from server.store.errors import UnavailableError
-    from server.web import resolved_database_url
+    from slipwise.store import Database, SchemaError
+    from slipwise.store.errors import UnavailableError
+    from slipwise.web import resolved_database_url
 
     if not 0 <= args.port <= 65535:
         print("slipwise: --port must be from 0 to 65535", file=sys.stderr)
@@ -58,7 +58,7 @@ def serve(args, config: dict[str, Any]) -> int:
     cert, key = args.cert, args.key
     data_dir = Path(config["DATA_DIR"])
     if args.self_signed:
-        from server.tls import fingerprint_sha256, local_addresses, self_signed
+        from slipwise.tls import fingerprint_sha256, local_addresses, self_signed
         addresses = local_addresses()
         cert_path, key_path, made = self_signed(data_dir / "tls", addresses)
         cert, key = str(cert_path), str(key_path)
@@ -70,7 +70,7 @@ def serve(args, config: dict[str, Any]) -> int:
             return 2
     if config.get("THRESHOLDS"):
         try:
-            from server.web import load_thresholds
+            from slipwise.web import load_thresholds
             load_thresholds(config["THRESHOLDS"])
         except (OSError, ValueError) as e:
             print(f"slipwise: --thresholds: {e}", file=sys.stderr)
@@ -100,7 +100,7 @@ def serve(args, config: dict[str, Any]) -> int:
     elif upgraded:
         print(f"database {db.describe()}: schema version {after}")
     if not config.get("SECRET_KEY") and not os.environ.get("SLIPWISE_SECRET_KEY"):
-        from server.web import load_secret
+        from slipwise.web import load_secret
         load_secret(data_dir)  # create it once here, not racing in each worker
 
     scheme = "https" if cert else "http"

@@ -503,7 +503,7 @@ def interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None = N
     Returns
     -------
     dict of str -> numpy.ndarray
-        Every column of :data:`server.contract.RESULT_COLUMNS`, plus
+        Every column of :data:`slipwise.contract.RESULT_COLUMNS`, plus
         ``"_combination"`` (per row, an index into ``"_combination_flags"``,
         tuples of flag codes, and ``"_combination_findings"``, lists of
         ``{flag, text, caution}`` dicts; -1 for a row not interpreted). Rows

@@ -4,14 +4,14 @@ from __future__ import annotations
 
 from typing import Any, Mapping
 
-from server.contract import NAMEPLATE_FIELDS
-from server.store.errors import ValidationError
+from slipwise.contract import NAMEPLATE_FIELDS
+from slipwise.store.errors import ValidationError
 
 from .state import state
 
 
 def interpret(record: Mapping[str, Any]) -> dict:
-    from server.engine import InputError, interpret_one
+    from slipwise.engine import InputError, interpret_one
     try:
         return interpret_one(record, state().thresholds)
     except InputError as e:
@@ -19,7 +19,7 @@ def interpret(record: Mapping[str, Any]) -> dict:
 
 
 def torque_speed(record: Mapping[str, Any]) -> dict:
-    from server.engine import InputError, torque_speed_curve
+    from slipwise.engine import InputError, torque_speed_curve
     try:
         return torque_speed_curve(record, state().thresholds)
     except InputError as e:

@@ -18,8 +18,8 @@ from typing import Any, Mapping
 from flask import Flask, request
 from sqlalchemy.exc import OperationalError
 
-from server.store import Database, sqlite_url
-from server.store.errors import UnavailableError
+from slipwise.store import Database, sqlite_url
+from slipwise.store.errors import UnavailableError
 
 from . import auth, errors, export, misc, motors, pages, readings, security
 from .params import IdConverter, PagePathConverter, ids_in_range
@@ -32,7 +32,7 @@ DEFAULTS: dict[str, Any] = {
     "DATABASE_URL": None,          # default: SQLite file slipwise.sqlite3 in DATA_DIR
     "DB_SCHEMA": None,             # PostgreSQL schema to use (search_path); tests give each run its own
     "SECRET_KEY": None,            # default: generated once and kept in DATA_DIR/secret_key
-    "THRESHOLDS": None,            # mapping, or path of a JSON file, for server.engine.Thresholds
+    "THRESHOLDS": None,            # mapping, or path of a JSON file, for slipwise.engine.Thresholds
     "MAX_CONTENT_LENGTH": 256 * 1024,
     "SESSION_HOURS": 12,           # one shift
     "SESSION_COOKIE_SECURE": False,  # True forces Secure cookies behind a TLS-terminating proxy
@@ -69,7 +69,7 @@ def load_secret(data_dir: Path) -> bytes:
 def load_thresholds(value: Any):
     if value is None or value == "":
         return None
-    from server.engine import thresholds_from_mapping
+    from slipwise.engine import thresholds_from_mapping
     if isinstance(value, Mapping):
         return thresholds_from_mapping(dict(value))
     if isinstance(value, str) and value.lstrip().startswith("{"):

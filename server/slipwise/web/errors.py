@@ -10,7 +10,7 @@ from sqlalchemy.exc import InterfaceError, OperationalError
 from sqlalchemy.exc import TimeoutError as PoolTimeoutError
 from werkzeug.exceptions import HTTPException
 
-from server.store.errors import (ConflictError, NotFoundError, SchemaError, StoreError, UnavailableError,
+from slipwise.store.errors import (ConflictError, NotFoundError, SchemaError, StoreError, UnavailableError,
                                  ValidationError)
 
 log = logging.getLogger("slipwise.web")

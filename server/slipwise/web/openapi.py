@@ -9,10 +9,10 @@ from __future__ import annotations
 import functools
 from typing import Any
 
-from server.contract import (CHOICE_FIELDS, ENGINE_VERSION, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS,
+from slipwise.contract import (CHOICE_FIELDS, ENGINE_VERSION, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS,
                              NUMBER_FIELDS, READING_FIELDS, RESULT_COLUMNS, TAG_MAX_CHARS, TEXT_RESULT_COLUMNS)
 
-from server.store.validation import MAX_ID
+from slipwise.store.validation import MAX_ID
 
 from .export import EXPORT_COLUMNS
 
@@ -220,7 +220,7 @@ def document() -> dict:
             "user": _ref("User"), "csrf_token": {"type": "string", "nullable": True,
                                                  "description": "send as X-CSRF-Token on writes"},
             "expires_at": {"type": "string", "format": "date-time"},
-            "thresholds": {"type": "object", "description": "flag thresholds in force (see server.engine.Thresholds)",
+            "thresholds": {"type": "object", "description": "flag thresholds in force (see slipwise.engine.Thresholds)",
                            "additionalProperties": {"type": "number"}}}},
         "MotorInput": motor_input,
         "MotorUpdate": motor_update,

@@ -19,7 +19,7 @@ bp = Blueprint("pages", __name__)
 mimetypes.add_type("application/manifest+json", ".webmanifest")
 mimetypes.add_type("text/javascript", ".js")
 
-DEFAULT_STATIC_DIR = Path(__file__).resolve().parents[2] / "static"
+DEFAULT_STATIC_DIR = Path(__file__).resolve().parents[3] / "static"
 
 
 def _send(path: str, no_cache: bool = False):

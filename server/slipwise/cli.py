@@ -1,7 +1,7 @@
 """``slipwise``: the command line. Parses options, calls the store and the web app, prints.
 
 Subcommands: ``serve``, ``demo``, ``user add``, ``user list``, ``token create``,
-and ``analyze`` (in ``server.cli_analyze``).
+and ``analyze`` (in ``slipwise.cli_analyze``).
 
 Exit status: 0 success, 1 refused (a user that exists, a bad password...),
 2 usage or configuration error.
@@ -21,7 +21,7 @@ from typing import Any
 for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
     os.environ.setdefault(_var, "1")
 
-from server.cli_analyze import add_analyze_parser  # noqa: E402
+from slipwise.cli_analyze import add_analyze_parser  # noqa: E402
 
 
 class CliError(Exception):
@@ -46,7 +46,7 @@ def _config(args, **extra) -> dict[str, Any]:
 
 def _database(args):
     """The configured database, upgraded to this version's schema."""
-    from server.store import Database, sqlite_url
+    from slipwise.store import Database, sqlite_url
     url = (getattr(args, "database_url", None) or os.environ.get("DATABASE_URL")
            or sqlite_url(_data_dir(args) / "slipwise.sqlite3"))
     db = Database(url, schema=os.environ.get("SLIPWISE_DB_SCHEMA") or None)
@@ -68,7 +68,7 @@ def _read_password(args) -> str:
 
 
 def cmd_user_add(args) -> int:
-    from server.store import accounts
+    from slipwise.store import accounts
     password = _read_password(args)
     db = _database(args)
     with db.write() as conn:
@@ -78,7 +78,7 @@ def cmd_user_add(args) -> int:
 
 
 def cmd_user_list(args) -> int:
-    from server.store import accounts
+    from slipwise.store import accounts
     db = _database(args)
     with db.read() as conn:
         users = accounts.list_users(conn)
@@ -92,7 +92,7 @@ def cmd_user_list(args) -> int:
 
 
 def cmd_token_create(args) -> int:
-    from server.store import accounts
+    from slipwise.store import accounts
     db = _database(args)
     with db.write() as conn:
         token = accounts.create_token(conn, args.name, args.label or "")
@@ -103,12 +103,12 @@ def cmd_token_create(args) -> int:
 
 # --- serve / demo ---------------------------------------------------------------
 def cmd_serve(args) -> int:
-    from server.serving import serve
+    from slipwise.serving import serve
     return serve(args, _config(args))
 
 
 def cmd_demo(args) -> int:
-    from server.demo import run_demo
+    from slipwise.demo import run_demo
     return run_demo(args, _data_dir(args))
 
 
@@ -130,7 +130,7 @@ def _serve_options(parser: argparse.ArgumentParser) -> None:
                              "folder and serve HTTPS with it")
     parser.add_argument("--workers", type=int, default=2, help="worker processes (default 2)")
     parser.add_argument("--threads", type=int, default=4, help="threads per worker (default 4)")
-    parser.add_argument("--thresholds", help="JSON file of flag thresholds (names of server.engine.Thresholds)")
+    parser.add_argument("--thresholds", help="JSON file of flag thresholds (names of slipwise.engine.Thresholds)")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -184,7 +184,7 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv: list[str] | None = None) -> int:
     from sqlalchemy.exc import OperationalError
 
-    from server.store.errors import SchemaError, StoreError
+    from slipwise.store.errors import SchemaError, StoreError
     parser = build_parser()
     args = parser.parse_args(argv)
     try:

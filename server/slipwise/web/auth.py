@@ -10,8 +10,8 @@ from datetime import timedelta
 
 from flask import Blueprint, current_app, g, jsonify, request
 
-from server.engine import Thresholds
-from server.store import accounts
+from slipwise.engine import Thresholds
+from slipwise.store import accounts
 
 from .errors import ApiError
 from .params import has_control_character

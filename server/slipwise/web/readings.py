@@ -7,11 +7,11 @@ import json
 
 from flask import Blueprint, Response, g, request
 
-from server.contract import READING_FIELDS
-from server.store import readings as store_readings
-from server.store import validation
-from server.store.readings import Submission
-from server.store.types import utcnow
+from slipwise.contract import READING_FIELDS
+from slipwise.store import readings as store_readings
+from slipwise.store import validation
+from slipwise.store.readings import Submission
+from slipwise.store.types import utcnow
 
 from .auth import requires
 from .interpretation import interpret, torque_speed

@@ -12,7 +12,7 @@ import uuid
 from datetime import datetime, timedelta, timezone
 from typing import Any, Mapping
 
-from server.contract import CHOICE_FIELDS, NUMBER_FIELDS, READING_FIELDS, TAG_MAX_CHARS
+from slipwise.contract import CHOICE_FIELDS, NUMBER_FIELDS, READING_FIELDS, TAG_MAX_CHARS
 
 from .errors import ValidationError
 from .schema import REVISION_NAMEPLATE_FIELDS

@@ -9,7 +9,7 @@ from typing import Any
 
 from flask import current_app
 
-from server.store import Database
+from slipwise.store import Database
 
 
 @dataclass

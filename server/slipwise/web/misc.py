@@ -6,11 +6,11 @@ import json
 
 from flask import Blueprint, Response, jsonify
 
-from server.contract import ENGINE_VERSION, INPUT_FIELDS
-from server.store import audit, validation
-from server.store import motors as store_motors
-from server.store.readings import engine_record, to_json
-from server.store.types import utcnow
+from slipwise.contract import ENGINE_VERSION, INPUT_FIELDS
+from slipwise.store import audit, validation
+from slipwise.store import motors as store_motors
+from slipwise.store.readings import engine_record, to_json
+from slipwise.store.types import utcnow
 
 from .auth import requires
 from .interpretation import interpret

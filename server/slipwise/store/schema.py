@@ -13,7 +13,7 @@ from __future__ import annotations
 from sqlalchemy import (Boolean, CheckConstraint, Column, Float, ForeignKey, Index, Integer, MetaData,
                         String, Table, Text, UniqueConstraint)
 
-from server.contract import NAMEPLATE_FIELDS, NUMBER_FIELDS, TAG_MAX_CHARS
+from slipwise.contract import NAMEPLATE_FIELDS, NUMBER_FIELDS, TAG_MAX_CHARS
 
 from .types import UTCDateTime
 

@@ -29,8 +29,8 @@ from typing import Any, Iterable, Iterator, Mapping
 
 from flask import Blueprint, Response
 
-from server.contract import NAMEPLATE_FIELDS, READING_FIELDS, RESULT_COLUMNS
-from server.store import readings as store_readings
+from slipwise.contract import NAMEPLATE_FIELDS, READING_FIELDS, RESULT_COLUMNS
+from slipwise.store import readings as store_readings
 
 from .auth import requires
 from .params import date_param, query, text_param

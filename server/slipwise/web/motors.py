@@ -4,9 +4,9 @@ from __future__ import annotations
 
 from flask import Blueprint, g, jsonify
 
-from server.store import motors as store_motors
-from server.store import validation
-from server.store.motors import REVISION_FIELDS
+from slipwise.store import motors as store_motors
+from slipwise.store import validation
+from slipwise.store.motors import REVISION_FIELDS
 
 from .auth import requires
 from .errors import ApiError
