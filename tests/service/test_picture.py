@@ -10,7 +10,7 @@ import slipwise.web.readings as views
 def test_svg_picture_is_drawn_once_and_cached(app, tech, reading, monkeypatch):
     calls = []
     real = views.torque_speed
-    monkeypatch.setattr(views, "torque_speed", lambda record: calls.append(record) or real(record))
+    monkeypatch.setattr(views, "torque_speed", lambda record, *rest: calls.append(record) or real(record, *rest))
     url = f"/api/v1/readings/{reading['id']}/torque-speed.svg"
     first = tech.get(url)
     assert first.status_code == 200

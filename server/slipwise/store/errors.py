@@ -26,6 +26,13 @@ class ValidationError(StoreError):
     code = "invalid_input"
 
 
+class DuplicateError(ConflictError):
+    """An insert met a unique index (a replayed client_id, a tag taken, a reading superseded twice).
+
+    The caller decides what the duplicate means; nothing of the transaction is kept.
+    """
+
+
 class UnavailableError(Exception):
     """The database cannot be reached, or cannot write now (read-only, full, failing disk).
 

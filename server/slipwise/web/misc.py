@@ -7,13 +7,12 @@ import json
 from flask import Blueprint, Response, jsonify
 
 from slipwise.contract import ENGINE_VERSION, INPUT_FIELDS
+from slipwise.services import readings as services
+from slipwise.services.records import to_json
 from slipwise.store import audit, validation
-from slipwise.store import motors as store_motors
-from slipwise.store.readings import engine_record, to_json
 from slipwise.store.types import utcnow
 
 from .auth import requires
-from .interpretation import interpret
 from .openapi import document
 from .params import date_param, int_param, query
 from .security import json_body
@@ -37,6 +36,7 @@ def health():
 @bp.post("/interpret")
 @requires("technician")
 def interpret_without_storing():
+    st = state()
     body = json_body()
     validation.unknown_fields(body, frozenset(INPUT_FIELDS) | {"motor_id"})
     reading = validation.reading(body)
@@ -48,15 +48,13 @@ def interpret_without_storing():
         if given:
             from .errors import ApiError
             raise ApiError(400, "invalid_input", "give motor_id or the nameplate fields, not both", given[0])
-        with state().db.read() as conn:
-            motor = store_motors.get_motor(conn, motor_id)
-        record = engine_record(motor, motor["tag"], reading, taken_at)
+        result = services.interpret_reading(st.db, reading, taken_at, motor_id=motor_id, thresholds=st.thresholds)
     else:
         # the document makes tag optional here: nothing is stored, so an untagged check is fine
         tag = "(untagged)" if validation.blank(body.get("tag")) else validation.tag(body.get("tag"))
-        record = engine_record(validation.nameplate(body) | {"location": "", "description": ""}, tag, reading,
-                               taken_at)
-    return Response(to_json(interpret(record)), mimetype="application/json")
+        result = services.interpret_reading(st.db, reading, taken_at, nameplate=validation.nameplate(body), tag=tag,
+                                            thresholds=st.thresholds)
+    return Response(to_json(result), mimetype="application/json")
 
 
 @bp.get("/audit")

@@ -4,14 +4,13 @@ from __future__ import annotations
 
 from flask import Blueprint, g, jsonify
 
-from slipwise.store import motors as store_motors
+from slipwise.services import motors as services
 from slipwise.store import validation
 from slipwise.store.motors import REVISION_FIELDS
 
 from .auth import requires
-from .errors import ApiError
-from .interpretation import check_nameplate
 from .params import query, text_param
+from .render import motor_dict, motor_record_dict
 from .security import json_body
 from .state import state
 
@@ -31,8 +30,7 @@ def _fields(body: dict) -> dict:
 @requires("technician")
 def list_motors():
     args = query(("site",))
-    with state().db.read() as conn:
-        items = store_motors.list_motors(conn, site=text_param(args, "site"))
+    items = [motor_dict(r) for r in services.list_motors(state().db, site=text_param(args, "site"))]
     return jsonify({"motors": items, "count": len(items)})
 
 
@@ -44,18 +42,15 @@ def create_motor():
     site = validation.text("site", body.get("site"), required=True)
     tag = validation.tag(body.get("tag"))
     fields = _fields(body)
-    check_nameplate(tag, fields)
-    with state().db.write() as conn:
-        motor = store_motors.create_motor(conn, g.user, site, tag, fields)
-    return jsonify(motor), 201
+    st = state()
+    return jsonify(motor_dict(services.register_motor(st.db, g.user, site, tag, fields, st.thresholds))), 201
 
 
 @bp.get("/motors/<id:motor_id>")
 @requires("technician")
 def get_motor(motor_id: int):
     query(())
-    with state().db.read() as conn:
-        return jsonify(store_motors.get_motor(conn, motor_id, with_history=True))
+    return jsonify(motor_record_dict(services.get_motor(state().db, motor_id, with_history=True)))
 
 
 @bp.put("/motors/<id:motor_id>")
@@ -67,15 +62,7 @@ def revise_motor(motor_id: int):
     if expected is not None:
         expected = validation.identifier("revision", expected)
     fields = _fields(body)
-    db = state().db
-    with db.read() as conn:
-        current = store_motors.get_motor(conn, motor_id)
-    for name in ("site", "tag"):
-        if name in body and body[name] != current[name]:
-            raise ApiError(400, "invalid_input", f"{name} cannot change (it is {current[name]!r}); "
-                                                 "register a new motor instead", name)
-    check_nameplate(current["tag"], fields)
-    with db.write() as conn:
-        motor, changed = store_motors.revise_motor(conn, g.user, motor_id, fields, expected)
-        motor = store_motors.get_motor(conn, motor_id, with_history=True)
-    return jsonify(motor), 200
+    identity = {k: body[k] for k in ("site", "tag") if k in body}
+    st = state()
+    motor, _changed = services.revise_motor(st.db, g.user, motor_id, fields, expected, identity, st.thresholds)
+    return jsonify(motor_record_dict(motor)), 200

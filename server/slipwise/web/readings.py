@@ -3,20 +3,20 @@
 from __future__ import annotations
 
 import hashlib
-import json
 
 from flask import Blueprint, Response, g, request
 
 from slipwise.contract import READING_FIELDS
-from slipwise.store import readings as store_readings
+from slipwise.services import readings as services
+from slipwise.services.interpretation import torque_speed
+from slipwise.services.records import Submission
 from slipwise.store import validation
-from slipwise.store.readings import Submission
 from slipwise.store.types import utcnow
 
 from .auth import requires
-from .interpretation import interpret, torque_speed
 from .params import date_param, flag_param, int_param, query, text_param
 from .picture import render_torque_speed_svg
+from .render import day_log_json, reading_record_json, review_json
 from .security import SVG_CONTENT_SECURITY_POLICY, json_body
 from .state import state
 
@@ -44,8 +44,9 @@ def parse_submission(body: dict) -> Submission:
 @requires("technician")
 def submit():
     sub = parse_submission(json_body())
-    reading, created = store_readings.submit(state().db, g.user, sub, interpret)
-    return _json(json.dumps(reading, ensure_ascii=False), 201 if created else 200)
+    st = state()
+    reading, created = services.submit_reading(st.db, g.user, sub, st.thresholds)
+    return _json(reading_record_json(reading), 201 if created else 200)
 
 
 @bp.get("/readings")
@@ -56,17 +57,14 @@ def day_log():
                    technician=text_param(args, "technician", 64),
                    motor_id=int_param(args, "motor_id", 1, validation.MAX_ID))
     limit = int_param(args, "limit", 1, LIST_LIMIT, LIST_LIMIT)
-    with state().db.read() as conn:
-        items, count = store_readings.list_readings_json(conn, limit=limit, **filters)
-    return _json('{"count":' + str(count) + ',"readings":' + items + "}")
+    return _json(day_log_json(services.day_log(state().db, limit=limit, **filters)))
 
 
 @bp.get("/readings/<id:reading_id>")
 @requires("technician")
 def one(reading_id: int):
     query(())
-    with state().db.read() as conn:
-        return _json(store_readings.get_reading_json(conn, reading_id))
+    return _json(reading_record_json(services.get_reading(state().db, reading_id)))
 
 
 @bp.get("/readings/<id:reading_id>/torque-speed.svg")
@@ -74,8 +72,7 @@ def one(reading_id: int):
 def picture(reading_id: int):
     query(())
     st = state()
-    with st.db.read() as conn:
-        record, summary = store_readings.record_for_picture(conn, reading_id)
+    record, summary = services.picture_record(st.db, reading_id)
     # a stored reading never changes, so its picture depends only on the engine that draws it
     key = reading_id
     with st.picture_lock:
@@ -83,7 +80,7 @@ def picture(reading_id: int):
         if svg is not None:
             st.picture_cache.move_to_end(key)
     if svg is None:
-        curve = torque_speed(record)
+        curve = torque_speed(record, st.thresholds)
         svg = render_torque_speed_svg(curve, title=f"{summary['tag']} — reading {reading_id}, "
                                                    f"taken {summary['taken_at']}")
         with st.picture_lock:
@@ -110,5 +107,4 @@ def review(reading_id: int):
     if not isinstance(decision, str):
         decision = ""
     comment = validation.text("comment", body.get("comment"), limit=2000)
-    result = store_readings.add_review(state().db, g.user, reading_id, decision, comment)
-    return _json(json.dumps(result, ensure_ascii=False), 201)
+    return _json(review_json(services.review_reading(state().db, g.user, reading_id, decision, comment)), 201)
