@@ -53,3 +53,13 @@ def test_duplicate_client_id_is_reported_and_rolled_back(db, users, motor):
             store_readings.insert_reading(conn, values, ["some_flag"])
     with db.read() as conn:
         assert conn.exec_driver_sql("SELECT COUNT(*) FROM readings").scalar_one() == 1
+
+
+def test_audit_trail_is_rows_newest_first(db, users, motor):
+    from slipwise.services import audit
+    readings.submit_reading(db, users["tess"], submission(motor["id"]))
+    rows = audit.audit_trail(db)
+    assert [r["action"] for r in rows[:2]] == ["reading.submit", "motor.create"]
+    assert isinstance(rows[0]["detail"], str) and isinstance(rows[0]["at"], datetime)
+    assert audit.audit_trail(db, date="1999-01-01") == []
+    assert len(audit.audit_trail(db, limit=1)) == 1

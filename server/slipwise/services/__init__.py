@@ -10,5 +10,5 @@ Modules: ``records`` (the parsed submission, the engine's input record, JSON
 text for storage), ``interpretation`` (the engine, its input errors as
 ValidationError), ``motors`` (register, revise, read), ``readings`` (submit,
 review, read, day log, export rows, interpret without storing), ``accounts``
-(users and tokens for the CLI).
+(users and tokens for the CLI), ``audit`` (the trail, read back).
 """

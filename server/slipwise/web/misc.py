@@ -7,14 +7,16 @@ import json
 from flask import Blueprint, Response, jsonify
 
 from slipwise.contract import ENGINE_VERSION, INPUT_FIELDS
+from slipwise.services import audit as audit_services
 from slipwise.services import readings as services
 from slipwise.services.records import to_json
-from slipwise.store import audit, validation
+from slipwise.store import validation
 from slipwise.store.types import utcnow
 
 from .auth import requires
 from .openapi import document
 from .params import date_param, int_param, query
+from .render import audit_entry_dict
 from .security import json_body
 from .state import state
 
@@ -61,8 +63,8 @@ def interpret_without_storing():
 @requires("supervisor")
 def audit_trail():
     args = query(("date", "limit"))
-    with state().db.read() as conn:
-        entries = audit.list_entries(conn, date=date_param(args), limit=int_param(args, "limit", 1, 10000, 1000))
+    entries = [audit_entry_dict(r) for r in audit_services.audit_trail(
+        state().db, date=date_param(args), limit=int_param(args, "limit", 1, 10000, 1000))]
     return jsonify({"entries": entries, "count": len(entries)})
 
 

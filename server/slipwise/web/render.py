@@ -1,4 +1,4 @@
-"""The API's JSON for what the services return: readings, reviews, motors.
+"""The API's JSON for what the services return: readings, reviews, motors, audit entries.
 
 A reading's stored ``inputs`` and ``result`` are JSON text already; they are
 spliced into the response without being parsed and written again, which keeps
@@ -74,3 +74,8 @@ def motor_record_dict(record: MotorRecord) -> dict[str, Any]:
              "created_by": r["created_by_name"], **{f: r[f] for f in REVISION_FIELDS}}
             for r in record.revisions]
     return d
+
+
+def audit_entry_dict(row: Mapping[str, Any]) -> dict[str, Any]:
+    return {"id": row["id"], "at": row["at"].isoformat(), "actor": row["actor"], "action": row["action"],
+            "object_type": row["object_type"], "object_id": row["object_id"], "detail": json.loads(row["detail"])}
