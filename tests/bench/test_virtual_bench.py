@@ -19,10 +19,12 @@ REASONS = {
             "load and 95 % V reads 0.1-0.3 % high with a band below 0.3 % wide on the low side",
     "false_flag": "flag raised that the truth does not call for: overloaded/over_service_factor on the "
                   "central value at a true 100 % load (verdict not yet on the band), readings_inconsistent "
-                  "at 105 % V on the small machine (saturated magnetising current not in the current method)",
-    "margin_low": "no pessimistic breakdown margin yet: the central margin, from a typical 270 % "
-                  "breakdown torque, is above the small machine's true margin (238 %); breakdown band "
-                  "to be wired from typical.breakdown_torque_low_pct / torque_speed.breakdown_margin_band",
+                  "at 105 % V (small machine at 10-75 % load, large at 10 %: the saturated magnetising "
+                  "current is not yet in the current method)",
+    "margin_low": "no pessimistic breakdown margin yet: the central margin is reported, above the truth "
+                  "on the small machine (typical 270 % breakdown torque against a true 238 %) and by "
+                  "0.1-1 % on the large one (data-sheet value, no -10 % tolerance); to be wired from "
+                  "typical.breakdown_torque_low_pct and torque_speed.breakdown_margin_band",
     "overloaded": "",
     "underloaded": "",
 }

@@ -99,3 +99,12 @@ def test_power_factor_and_fixed_losses():
     assert ty.typical_power_factor(11.0, 8) < ty.typical_power_factor(11.0, 4) < ty.typical_power_factor(11.0, 2)
     assert ty.FIXED_LOSS_SHARE_LOW < ty.FIXED_LOSS_SHARE < ty.FIXED_LOSS_SHARE_HIGH
     np.testing.assert_array_equal(ty.lookup({"A": 1.0, "B": 2.0}, ["B", "A", "Q"])[:2], [2.0, 1.0])
+
+
+def test_docstring_examples_run():
+    import doctest
+
+    from slipwise.physics import efficiency, load, torque_speed
+    for module in (ty, torque_speed, efficiency, load):
+        result = doctest.testmod(module)
+        assert result.failed == 0 and result.attempted > 0, module.__name__

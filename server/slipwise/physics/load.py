@@ -102,7 +102,7 @@ def slip_torque_pu(slip_rpm, rated_slip_rpm, flux_ratio):
 
     Examples
     --------
-    >>> float(slip_torque_pu(40.0 * 1.02 ** 2, 40.0, 1.0 / 1.02))
+    >>> round(float(slip_torque_pu(40.0 * 1.02 ** 2, 40.0, 1.0 / 1.02)), 6)
     1.0
     """
     with np.errstate(divide="ignore", invalid="ignore"):
