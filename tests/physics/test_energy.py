@@ -201,3 +201,11 @@ def test_energy_linear_in_hours(p, h, k):
 def test_cube_law_monotonic(p, r1, r2):
     lo, hi = sorted((r1, r2))
     assert affinity_power_kw(p, lo) <= affinity_power_kw(p, hi)
+
+
+@settings(deadline=None, max_examples=200)
+@given(st.floats(0.0, 2000.0), st.floats(0.0, 0.3), eff_pu, st.floats(0.0, 0.05))
+def test_input_power_band_contains_central(p, spread, eta, eta_spread):
+    r = input_power(p, p * (1 - spread), p * (1 + spread), eta, eta - eta_spread, min(eta + eta_spread, 1.0))
+    assert r.input_power_low_kw <= r.input_power_kw * (1 + 1e-12) + 1e-12
+    assert r.input_power_kw <= r.input_power_high_kw * (1 + 1e-12) + 1e-12

@@ -187,12 +187,12 @@ def annual_energy_kwh(input_power_kw, operating_hours_per_year_h):
     return _out(np.where(ok, p * h, np.nan))
 
 
-def annual_energy_cost(annual_energy_kwh_, energy_price_per_kwh):
+def annual_energy_cost(energy_kwh, energy_price_per_kwh):
     """Cost of a year's energy, in the currency of the price.
 
     Parameters
     ----------
-    annual_energy_kwh_ : numeric
+    energy_kwh : numeric
         Energy a year [kWh], >= 0.
     energy_price_per_kwh : numeric
         Price [currency/kWh], >= 0 (an average tariff; demand charges are not
@@ -203,7 +203,7 @@ def annual_energy_cost(annual_energy_kwh_, energy_price_per_kwh):
     numeric
         ``C = E x price`` [currency]; NaN where an input is negative or NaN.
     """
-    e, c = _f(annual_energy_kwh_), _f(energy_price_per_kwh)
+    e, c = _f(energy_kwh), _f(energy_price_per_kwh)
     return _out(np.where((e >= 0.0) & (c >= 0.0), e * c, np.nan))
 
 
@@ -255,6 +255,11 @@ def right_size_savings_kwh(shaft_output_kw, operating_hours_per_year_h, efficien
     The DOE / Motor Challenge savings formula [3]_,
     ``kW saved = hp x 0.746 x L x (100/E_old - 100/E_new)``, with
     ``hp x 0.746 x L`` the shaft load in kW, times the hours.
+
+    Examples
+    --------
+    >>> round(float(right_size_savings_kwh(25 * 0.746, 4000.0, 0.885, 0.91)))  # 25 hp, 88.5 -> 91 %
+    2316
     """
     e_old = annual_energy_kwh(input_power_from_output_kw(shaft_output_kw, efficiency_old_pu),
                               operating_hours_per_year_h)
@@ -294,7 +299,7 @@ def right_size_savings_with_speed_kwh(shaft_output_kw, operating_speed_rpm, new_
         Present shaft load [kW].
     operating_speed_rpm, new_speed_rpm : numeric
         Present speed and the replacement's speed on the same load [rpm]
-        (see :func:`variable_torque_speed_rpm`).
+        (see :func:`slipwise.physics.right_sizing.variable_torque_speed_rpm`).
     operating_hours_per_year_h : numeric
         Hours run a year [h].
     efficiency_old_pu, efficiency_new_pu : numeric
@@ -313,7 +318,9 @@ def right_size_savings_with_speed_kwh(shaft_output_kw, operating_speed_rpm, new_
     is useful work is the process's question, not the motor's. DOE [2]_
     names both full-load speeds as needed for the assessment.
     """
-    ratio = _f(new_speed_rpm) / _f(operating_speed_rpm)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = _f(new_speed_rpm) / _f(operating_speed_rpm)
+    ratio = np.where(_f(operating_speed_rpm) > 0.0, ratio, np.nan)
     p_new = affinity_power_kw(shaft_output_kw, ratio)
     e_old = annual_energy_kwh(input_power_from_output_kw(shaft_output_kw, efficiency_old_pu),
                               operating_hours_per_year_h)

@@ -301,6 +301,15 @@ def variable_torque_speed_rpm(shaft_output_kw, operating_speed_rpm, synchronous_
     ``c u^2 + a u - a = 0``, ``u = (-a + sqrt(a^2 + 4 a c)) / (2 c)``.
     The linear torque line is good to about rated load (slip a few times
     smaller than at breakdown).
+    The load law is the ``variable_torque`` one of
+    :func:`slipwise.physics.torque_speed.load_torque`; supply voltage and
+    frequency are taken as the new motor's rated ones (slip grows about as
+    ``1/V^2`` below rated voltage, which this ignores).
+
+    Examples
+    --------
+    >>> round(float(variable_torque_speed_rpm(0.0, 1460.0, 1500.0, 11.0, 0.02)))   # no load
+    1500
     """
     p0, n0, ns = _f(shaft_output_kw), _f(operating_speed_rpm), _f(synchronous_speed_rpm)
     pn, sn = _f(new_rated_kw), _f(new_rated_slip_pu)
