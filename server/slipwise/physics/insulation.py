@@ -216,6 +216,14 @@ def insulation(ir_1min_mohm, winding_temperature_c, winding_type, insulation_cla
     References
     ----------
     .. [1] IEEE Std 43-2013, 6.3, 12.2, 12.3 and Tables 1 and 3.
+
+    Examples
+    --------
+    >>> out = insulation(120, 20, "form", "F", 6600, ir_10min_mohm=300)
+    >>> float(out["insulation_resistance_40c_mohm"]), int(out["insulation_state"])
+    (30.0, 3)
+    >>> float(out["polarization_index"]), int(out["polarization_index_state"])
+    (2.5, 1)
     """
     a = accuracy_fraction(tester_accuracy_pct, "tester_accuracy_pct")
     r1 = np.asarray(ir_1min_mohm, dtype=float)

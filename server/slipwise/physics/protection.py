@@ -145,6 +145,12 @@ def overload_setting(overload_setting_a, full_load_current_a, starter, nameplate
     ----------
     .. [1] NFPA 70, National Electrical Code, 430.32(A)(1).
     .. [2] IEC 60947-4-1, tripping limits of thermal overload relays.
+
+    Examples
+    --------
+    >>> out = overload_setting(100.0, 100.0, "star_delta", "iec")
+    >>> round(float(out["overload_setting_pct"]), 1), int(out["overload_setting_high_state"])
+    (173.2, 3)
     """
     setting = np.asarray(overload_setting_a, dtype=float)
     if np.any(setting <= 0):

@@ -86,6 +86,12 @@ def vibration(vibration_velocity_mm_s, rated_power_kw, foundation,
        vibration by measurements on non-rotating parts - Part 3, Annex A
        (superseded by ISO 20816-3:2022).
     .. [2] ISO 10816-1:1995, Part 1: General guidelines, Annex B.
+
+    Examples
+    --------
+    >>> out = vibration(3.2, 75, "rigid")
+    >>> str(out["vibration_zone"]), int(out["vibration_state"])
+    ('C', 3)
     """
     v = np.asarray(vibration_velocity_mm_s, dtype=float)
     if np.any(v < 0):

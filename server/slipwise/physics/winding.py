@@ -115,6 +115,12 @@ def winding_resistance(winding_resistance_l12_ohm, winding_resistance_l23_ohm, w
     ----------
     .. [1] NEMA MG 1, 14.35 (maximum-deviation definition of unbalance).
     .. [2] IEEE Std 118; IEC 60034-1 8.6.2.3 (temperature correction).
+
+    Examples
+    --------
+    >>> out = winding_resistance(102.0, 100.0, 98.0, 25, meter_accuracy_pct=0)
+    >>> float(out["winding_resistance_unbalance_pct"]), int(out["winding_resistance_unbalance_state"])
+    (2.0, 2)
     """
     r = np.stack(np.broadcast_arrays(*(np.asarray(x, dtype=float) for x in (
         winding_resistance_l12_ohm, winding_resistance_l23_ohm, winding_resistance_l31_ohm))))
