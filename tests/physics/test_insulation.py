@@ -1,6 +1,7 @@
 """Insulation resistance and polarization index against IEEE 43-2013.
 
-Values marked "from memory" are recalled from IEEE 43-2013, not read from it. The test-voltage table
+Values marked "from memory" are recalled from IEEE 43-2013, not read from it; the minimum IR rows,
+the 5 GΩ PI rule and the PI minimums agree with a NETA World summary of IEEE 43 (Tech Quiz #68, 2004). The test-voltage table
 was read from a tester maker's application note quoting IEEE 43-2000 Table 1 (same rows as 2013).
 """
 

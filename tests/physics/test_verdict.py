@@ -31,3 +31,9 @@ def test_docstring_examples_run():
     for module in (insulation, winding, protection, vibration):
         result = doctest.testmod(module, verbose=False)
         assert result.attempted >= 2 and result.failed == 0, module.__name__
+
+
+def test_missing_categories_read_as_missing():
+    from slipwise.physics.verdict import choice
+    # None and NaN in a text column (pandas) mean "not recorded", not an error
+    assert list(choice(["Rigid", "", None, float("nan")], "foundation", ("rigid", "flexible"))) == ["rigid", "", "", ""]

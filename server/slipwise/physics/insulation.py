@@ -16,7 +16,8 @@ REFERENCE_TEMPERATURE_C = 40.0
 #: IR halves for every this many °C rise (IEEE 43 approximation) [°C].
 HALVING_INTERVAL_C = 10.0
 
-#: IEEE 43-2013 Table 3 recommended minimum IR at 40 °C [MΩ] (from memory).
+#: IEEE 43-2013 Table 3 recommended minimum IR at 40 °C [MΩ]. From memory, not read in the
+#: standard; a NETA World summary of IEEE 43 (Tech Quiz #68, 2004) gives the same three rows.
 MINIMUM_FORM_WOUND_MOHM = 100.0   # form-wound windings made after about 1970
 MINIMUM_RANDOM_WOUND_MOHM = 5.0   # random-wound, and form-wound rated below 1 kV
 #: Form-wound windings rated below this use the 5 MΩ minimum [V] (from memory).
@@ -25,7 +26,8 @@ FORM_WOUND_LOW_VOLTAGE_V = 1000.0
 #: IEEE 43 minimum polarization index by thermal class (from memory; a tester's
 #: manual quoting IEEE 43-2000 gives the same: A 1.5, B/F/H 2.0).
 PI_MINIMUM = {"a": 1.5, "b": 2.0, "f": 2.0, "h": 2.0}
-#: Above this 1-minute IR the PI is not meaningful (IEEE 43, from memory) [MΩ].
+#: Above this 1-minute IR the PI is not meaningful (IEEE 43, from memory; the same NETA
+#: World summary gives 5 GΩ) [MΩ].
 PI_NOT_JUDGED_ABOVE_MOHM = 5000.0
 
 #: Insulation testers commonly state about ±5 % of reading (common practice) [%].

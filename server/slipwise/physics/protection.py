@@ -30,8 +30,8 @@ NEC_TEMPERATURE_RISE_C = 40.0
 #: (common practice; IEC 60947-4-1 tripping limits give the context).
 IEC_LIMIT_PCT = 105.0
 #: Within this many percentage points below the high limit the setting is at
-#: the limit: about the reading resolution of a relay's adjustment dial
-#: (common practice).
+#: the limit: about the reading resolution of a relay's adjustment dial (a
+#: project judgement, not a published figure).
 DIAL_BAND_PCT = 2.5
 #: IEC 60947-4-1 thermal overload relay: no trip at 1.05 x setting, trip within
 #: 2 h at 1.20 x setting (from memory).
@@ -138,7 +138,8 @@ def overload_setting(overload_setting_a, full_load_current_a, starter, nameplate
     Notes
     -----
     ``pct = 100 I_set / I_relay``. High: ``BEYOND`` above the limit,
-    ``AT_LIMIT`` within 2.5 points below it or at it. Low: ``BEYOND`` below
+    ``AT_LIMIT`` within 2.5 points below it or at it (the 2.5-point dial band is
+    a project judgement). Low: ``BEYOND`` below
     ``100 / 1.20`` = 83.3 %, ``AT_LIMIT`` below ``100 / 1.05`` = 95.2 %.
 
     References

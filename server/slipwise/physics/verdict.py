@@ -79,11 +79,14 @@ def judge_maximum(value, band_high, maximum):
 def choice(value, name, allowed):
     """A categorical parameter (scalar or array of str) checked against ``allowed``.
 
-    Returns the values as a numpy array of lower-case str; ``""`` means missing
-    and is kept (the judgement is then ``NOT_JUDGED``). Raises ``ValueError``
-    naming the parameter and the allowed values when any other value is given.
+    Returns the values as a numpy array of lower-case str. ``""``, None and NaN
+    (read as ``"none"`` and ``"nan"``, as a pandas column of text gives them)
+    mean missing and come back as ``""`` (the judgement is then
+    ``NOT_JUDGED``). Raises ``ValueError`` naming the parameter and the allowed
+    values when any other value is given.
     """
-    arr = np.char.lower(np.asarray(value, dtype=str))
+    arr = np.char.strip(np.char.lower(np.asarray(value, dtype=str)))
+    arr = np.where(np.isin(arr, ["none", "nan"]), "", arr)
     bad = sorted(set(np.unique(arr)) - set(allowed) - {""})
     if bad:
         raise ValueError(f"{name} must be one of {', '.join(allowed)}; got {bad[0]!r}")

@@ -84,7 +84,7 @@ def vibration(vibration_velocity_mm_s, rated_power_kw, foundation,
     ----------
     .. [1] ISO 10816-3:2009, Mechanical vibration - Evaluation of machine
        vibration by measurements on non-rotating parts - Part 3, Annex A
-       (superseded by ISO 20816-3:2022).
+       (superseded by ISO 20816-3:2022, whose tables were not checked here).
     .. [2] ISO 10816-1:1995, Part 1: General guidelines, Annex B.
 
     Examples
