@@ -10,6 +10,13 @@ def test_rotation_states():
     assert rotation_state(False) == BEYOND       # the engine raises rotation_wrong
     assert rotation_state(None) == NOT_JUDGED    # nobody looked
     assert rotation_state(np.nan) == NOT_JUDGED
+    assert rotation_state("") == NOT_JUDGED
+
+
+def test_yes_no_words():
+    # the sheet's yes/no answer
+    assert rotation_state("yes") == CLEAR and rotation_state("True") == CLEAR
+    assert rotation_state("no") == BEYOND and rotation_state("false") == BEYOND
 
 
 def test_scalar_equals_array():
