@@ -176,10 +176,34 @@ class Database:
         if backup and self._sqlite_path and 0 < st.current < target:
             stamp = utcnow().strftime("%Y%m%dT%H%M%SZ")
             saved = str(self.backup(f"{self._sqlite_path}.schema-{st.current}-{stamp}.bak"))
-        with self.write() as conn:
+        with self.migration() as conn:
             done = migrations.upgrade(conn, target, schema=self.schema)
         done.backup = saved
         return done
+
+    @contextmanager
+    def migration(self) -> Iterator[Connection]:
+        """A write transaction for migrations; on SQLite with foreign-key enforcement off.
+
+        SQLite alters most things by copying a table, dropping the old one and renaming the copy; with
+        enforcement on, the drop deletes the rows other tables refer to and the commit fails (deferring
+        the checks does not help: the rename does not undo the counted violations). SQLite's own recipe
+        (ALTER TABLE, "making other kinds of table schema changes") turns enforcement off outside the
+        transaction and runs ``PRAGMA foreign_key_check`` before the commit, which env.py does.
+        """
+        if self.dialect != "sqlite":
+            with self.write() as conn:
+                yield conn
+            return
+        with self._sqlite_writer():
+            with self.engine.connect() as conn:
+                raw = conn.connection.dbapi_connection  # no transaction is open yet: the pragma applies
+                raw.execute("PRAGMA foreign_keys=OFF")
+                try:
+                    with conn.execution_options(slipwise_write=True).begin():
+                        yield conn
+                finally:
+                    raw.execute("PRAGMA foreign_keys=ON")
 
     def check_current(self) -> None:
         """Raise unless the schema is exactly the one this code was written for."""

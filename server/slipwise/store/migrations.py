@@ -160,6 +160,9 @@ def upgrade(conn: Connection, target: int | None = None, schema: str | None = No
             location: str = SCRIPT_LOCATION) -> Upgrade:
     """Bring the database behind ``conn`` to ``target`` (default: head) inside the caller's write transaction.
 
+    ``conn`` comes from ``Database.migration()`` (on SQLite it turns foreign-key enforcement off, which
+    SQLite needs to rebuild a table others refer to; env.py checks every reference before the commit).
+
     ``schema`` is the PostgreSQL schema the connection's search_path points at (Alembic's version table
     goes there too). Raises SchemaTooNewError for a database newer than these scripts.
     """

@@ -19,12 +19,6 @@ if connection is None or context.is_offline_mode():
                        "(`slipwise db upgrade`), with a connection it has locked")
 
 sqlite = connection.dialect.name == "sqlite"
-if sqlite:
-    # batch operations copy a table, drop the old one and rename the copy: with foreign keys enforced
-    # the drop would fail on the rows that refer to it, so the checks wait for the commit instead
-    # (the flag lasts until the end of this transaction); foreign_key_check below verifies them
-    connection.exec_driver_sql("PRAGMA defer_foreign_keys = ON")
-
 context.configure(
     connection=connection,
     target_metadata=metadata,
@@ -37,6 +31,8 @@ with context.begin_transaction():
     context.run_migrations()
 
 if sqlite:
+    # batch operations copy a table, drop the old one and rename the copy, which SQLite allows only
+    # with foreign-key enforcement off (Database.migration turns it off): check every reference here
     broken = connection.exec_driver_sql("PRAGMA foreign_key_check").fetchall()
     if broken:
         raise RuntimeError(f"a migration left rows whose foreign keys point nowhere: {broken[:5]}")
