@@ -103,3 +103,27 @@ def test_newer_alembic_revision_is_refused(database, tmp_path):
     db.dispose()
     r = run_cli(["db", "upgrade"], _env(database, tmp_path))
     assert r.returncode == 2 and "newer than this slipwise" in r.stderr, r.stdout + r.stderr
+
+
+def test_upgrades_started_together_migrate_once(database, tmp_path):
+    """Four processes run `slipwise db upgrade` on one release-1 database at once: one upgrades, the
+    others wait on the lock (BEGIN IMMEDIATE / advisory lock) and find it current; nothing fails."""
+    import subprocess
+
+    from .conftest import REPO, SLIPWISE
+    db = Database(database.url, schema=database.schema)
+    db.upgrade(target=1)
+    db.dispose()
+    env = {**__import__("os").environ, **_env(database, tmp_path)}
+    procs = [subprocess.Popen([SLIPWISE, "db", "upgrade"], env=env, cwd=REPO, text=True,
+                              stdout=subprocess.PIPE, stderr=subprocess.PIPE) for _ in range(4)]
+    outs = [p.communicate(timeout=120) for p in procs]
+    assert [p.returncode for p in procs] == [0] * 4, outs
+    said = [out for out, _ in outs]
+    assert sum(f"from version 1 to {migrations.HEAD}" in s for s in said) == 1, said
+    assert sum("already current" in s for s in said) == 3, said
+    if not ON_POSTGRES:  # one copy of the file, taken by the one that upgraded, under the lock
+        assert len(list(tmp_path.glob("slipwise-test.sqlite3.schema-1-*.bak"))) == 1
+    db = Database(database.url, schema=database.schema)
+    assert db.status() == migrations.Status(migrations.HEAD, migrations.revision_id(migrations.HEAD))
+    db.dispose()

@@ -172,13 +172,17 @@ class Database:
         migrations.check_not_newer(st)
         if migrations.is_current(st, target):
             return migrations.Upgrade(st.current, st.current)
-        saved = None
-        if backup and self._sqlite_path and 0 < st.current < target:
-            stamp = utcnow().strftime("%Y%m%dT%H%M%SZ")
-            saved = str(self.backup(f"{self._sqlite_path}.schema-{st.current}-{stamp}.bak"))
+        saved: list[str] = []
+
+        def copy_first(version: int) -> None:
+            # under the migration lock: one process copies, the others find the schema current
+            if backup and self._sqlite_path:
+                stamp = utcnow().strftime("%Y%m%dT%H%M%SZ")
+                saved.append(str(self.backup(f"{self._sqlite_path}.schema-{version}-{stamp}.bak")))
+
         with self.migration() as conn:
-            done = migrations.upgrade(conn, target, schema=self.schema)
-        done.backup = saved
+            done = migrations.upgrade(conn, target, schema=self.schema, before_change=copy_first)
+        done.backup = saved[0] if saved else None
         return done
 
     @contextmanager

@@ -24,6 +24,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
+from typing import Callable
 
 from alembic import command
 from alembic.config import Config
@@ -157,7 +158,7 @@ def alembic_config(conn: Connection, schema: str | None = None, location: str = 
 
 
 def upgrade(conn: Connection, target: int | None = None, schema: str | None = None,
-            location: str = SCRIPT_LOCATION) -> Upgrade:
+            location: str = SCRIPT_LOCATION, before_change: Callable[[int], None] | None = None) -> Upgrade:
     """Bring the database behind ``conn`` to ``target`` (default: head) inside the caller's write transaction.
 
     ``conn`` comes from ``Database.migration()`` (on SQLite it turns foreign-key enforcement off, which
@@ -176,6 +177,8 @@ def upgrade(conn: Connection, target: int | None = None, schema: str | None = No
     before = st.current
     if is_current(st, target) or (target < BASELINE and before >= target):
         return Upgrade(before, before)
+    if before_change is not None and 0 < before < target:
+        before_change(before)
     version = st.version if st.revision is None else None
     if version is not None and (0 < version < BASELINE or target < BASELINE):
         # release 1 (or a test building an old database): release 2's own steps, then Alembic from 0002
