@@ -8,11 +8,15 @@ as a separate process, as a site would run it.
 from __future__ import annotations
 
 import json
+import os
+import sqlite3
+import subprocess
+import urllib.request
 
 from slipwise.store import Database, migrations
 
 from . import release_2
-from .conftest import ON_POSTGRES, ServerProcess, free_port, make_app, run_cli
+from .conftest import ON_POSTGRES, REPO, SLIPWISE, ServerProcess, free_port, make_app, run_cli
 
 
 def _env(database, tmp_path) -> dict[str, str]:
@@ -80,7 +84,6 @@ def test_serve_upgrades_an_older_database_at_start(database, tmp_path):
         server.wait_ready()
         out = server.output()
         assert f"schema upgraded from version 1 to {migrations.HEAD}" in out, out
-        import urllib.request
         with urllib.request.urlopen(server.base + "/api/v1/health", timeout=10) as resp:
             assert json.load(resp)["schema_version"] == migrations.HEAD
     finally:
@@ -89,7 +92,6 @@ def test_serve_upgrades_an_older_database_at_start(database, tmp_path):
         # the file as it was, saved beside it before the upgrade touched it
         copies = list(tmp_path.glob("slipwise-test.sqlite3.schema-1-*.bak"))
         assert len(copies) == 1 and "saved in" in out
-        import sqlite3
         with sqlite3.connect(copies[0]) as old:
             assert old.execute("SELECT version FROM schema_version").fetchone() == (1,)
             assert old.execute("SELECT COUNT(*) FROM sqlite_master WHERE name = 'reading_flags'").fetchone() == (0,)
@@ -108,13 +110,10 @@ def test_newer_alembic_revision_is_refused(database, tmp_path):
 def test_upgrades_started_together_migrate_once(database, tmp_path):
     """Four processes run `slipwise db upgrade` on one release-1 database at once: one upgrades, the
     others wait on the lock (BEGIN IMMEDIATE / advisory lock) and find it current; nothing fails."""
-    import subprocess
-
-    from .conftest import REPO, SLIPWISE
     db = Database(database.url, schema=database.schema)
     db.upgrade(target=1)
     db.dispose()
-    env = {**__import__("os").environ, **_env(database, tmp_path)}
+    env = {**os.environ, **_env(database, tmp_path)}
     procs = [subprocess.Popen([SLIPWISE, "db", "upgrade"], env=env, cwd=REPO, text=True,
                               stdout=subprocess.PIPE, stderr=subprocess.PIPE) for _ in range(4)]
     outs = [p.communicate(timeout=120) for p in procs]
