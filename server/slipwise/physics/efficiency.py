@@ -75,6 +75,33 @@ def rated_loss_budget(rated_output_w, rated_efficiency, rated_slip, fixed_share,
     return LossBudget(core, fw, stator, rotor)
 
 
+def scaled_losses_w(budget: LossBudget, flux_ratio, frequency_ratio, speed_ratio, current_ratio):
+    """Core, friction-and-windage and stator losses scaled from rated to the operating point [W].
+
+    Parameters
+    ----------
+    budget : LossBudget
+        Rated-point losses [W].
+    flux_ratio, frequency_ratio, speed_ratio, current_ratio : numeric
+        ``(V/f)/(V_r/f_r)``, ``f/f_r``, ``n/n_r`` and ``I/I_r`` [-].
+
+    Returns
+    -------
+    core_w, friction_windage_w, stator_w : numeric
+        [W].
+
+    Notes
+    -----
+    Core loss ~ flux^2 f (hysteresis dominant), friction and windage ~ n^2
+    (fan-cooled motor, common practice), stator copper loss ~ I^2.
+    IEC 60034-2-1 separates the losses in the same parts.
+    """
+    core = budget.core_w * np.asarray(flux_ratio, dtype=float) ** 2 * np.asarray(frequency_ratio, dtype=float)
+    fw = budget.friction_windage_w * np.asarray(speed_ratio, dtype=float) ** 2
+    stator = budget.stator_w * np.asarray(current_ratio, dtype=float) ** 2
+    return core, fw, stator
+
+
 def operating_losses_w(budget: LossBudget, flux_ratio, frequency_ratio, speed_ratio, current_ratio,
                        slip, output_w):
     """Losses at the operating point [W].
@@ -102,9 +129,7 @@ def operating_losses_w(budget: LossBudget, flux_ratio, frequency_ratio, speed_ra
         Total losses [W].
     """
     s = np.clip(np.asarray(slip, dtype=float), 0.0, 0.999)
-    fw = budget.friction_windage_w * np.asarray(speed_ratio, dtype=float) ** 2
-    core = budget.core_w * np.asarray(flux_ratio, dtype=float) ** 2 * np.asarray(frequency_ratio, dtype=float)
-    stator = budget.stator_w * np.asarray(current_ratio, dtype=float) ** 2
+    core, fw, stator = scaled_losses_w(budget, flux_ratio, frequency_ratio, speed_ratio, current_ratio)
     rotor = s / (1.0 - s) * (np.asarray(output_w, dtype=float) + fw)
     return core + fw + stator + rotor
 
