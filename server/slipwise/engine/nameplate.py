@@ -19,7 +19,7 @@ from cachetools import LRUCache
 from .. import contract as C
 from ..physics import circuit as ckt
 from ..physics import efficiency, efficiency_class, speed, typical
-from ..physics.units import HORSEPOWER_W, KILOWATT_W, SQRT3
+from ..physics.units import HORSEPOWER_W, KILOWATT_W
 from .inputs import Parsed, RowErrors, choice_column, column, number_columns, tag_column
 
 #: Fitted circuits kept (one per distinct nameplate) and parsed single nameplates kept.
@@ -109,7 +109,7 @@ def parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[Parsed, RowErrors
 
     # power balance of the nameplate: P = sqrt(3) V I pf eta
     v_r, i_r = p["rated_voltage_v"], p["rated_current_a"]
-    apparent = SQRT3 * v_r * i_r
+    apparent = efficiency.apparent_power_va(v_r, i_r)
     p_out = p["rated_kw"] * KILOWATT_W
     pf_np = p["rated_power_factor"]
     eta_np = p["rated_efficiency_pct"] / 100.0
@@ -117,14 +117,15 @@ def parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[Parsed, RowErrors
         eta_typ = efficiency_class.typical_efficiency_pct(np.nan_to_num(p["rated_kw"], nan=1.0),
                                                           np.nan_to_num(poles, nan=4.0),
                                                           np.nan_to_num(f_r, nan=50.0)) / 100.0
-        eta = np.where(np.isnan(eta_np), np.where(np.isnan(pf_np), eta_typ, p_out / (apparent * pf_np)), eta_np)
-        pf = p_out / (apparent * eta)
+        eta = np.where(np.isnan(eta_np), np.where(np.isnan(pf_np), eta_typ,
+                                                  efficiency.balance_factor(p_out, apparent, pf_np)), eta_np)
+        pf = efficiency.balance_factor(p_out, apparent, eta)
         neither = np.isnan(eta_np) & np.isnan(pf_np)
         pf_typ = typical.typical_power_factor(p["rated_kw"], poles)
         swap = neither & ((pf < 0.30) | (pf > 0.97))
         pf = np.where(swap, pf_typ, pf)
-        eta = np.where(swap, p_out / (apparent * pf_typ), eta)
-        expected_i = p_out / (SQRT3 * v_r * np.where(np.isnan(pf_np), pf, pf_np) * eta)
+        eta = np.where(swap, efficiency.balance_factor(p_out, apparent, pf_typ), eta)
+        expected_i = efficiency.line_current_a(p_out, v_r, np.where(np.isnan(pf_np), pf, pf_np), eta)
         bad_balance = ~np.isnan(pf) & ((pf < 0.30) | (pf > 0.97) | (eta < 0.40) | (eta > 0.99)
                                        | (~np.isnan(pf_np) & ~np.isnan(eta_np) & (np.abs(pf - pf_np) > 0.12)))
     errors.add(bad_balance, "rated_current_a",
@@ -134,10 +135,10 @@ def parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[Parsed, RowErrors
     # rotor copper loss alone is s/(1 - s) of the mechanical power: an efficiency that leaves less
     # than that (plus a tenth for the stator) is not a real motor's
     with np.errstate(invalid="ignore", divide="ignore"):
-        losses = p_out / eta - p_out
-        rotor_loss = s_r / (1.0 - s_r) * p_out
-        impossible = ~bad_balance & ~np.isnan(losses) & (rotor_loss > 0.9 * losses)
-        eta_max = 1.0 / (1.0 + s_r / (1.0 - s_r) / 0.9)
+        losses = efficiency.losses_w(p_out, eta)
+        rotor_loss = efficiency.rotor_copper_loss_w(s_r, p_out)
+        impossible = ~bad_balance & ~np.isnan(losses) & (rotor_loss > efficiency.ROTOR_LOSS_SHARE_MAX * losses)
+        eta_max = efficiency.max_efficiency_for_slip(s_r)
     given = np.where(np.isnan(eta_np), "the efficiency implied by its power, current and power factor",
                      "rated_efficiency_pct")
     errors.add(impossible, "rated_speed_rpm",
