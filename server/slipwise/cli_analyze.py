@@ -16,11 +16,10 @@ import pandas as pd
 
 from . import contract as C
 from .engine import InputError, interpret_columns, thresholds_from_mapping
-from .engine.records import cautions_cell, neutralise, result_cells
+from .engine.records import cautions_cell, neutralise, result_column
 
 #: Columns carried through from the input untouched (site records, notes).
 PASSTHROUGH_COLUMNS = ("site", "location", "description", "technician", "notes", "reading_ref")
-_FLAGS_AT = C.RESULT_COLUMNS.index("flags")
 _TEXT_INPUTS = {"tag", "design", "supply", "driven_load", "taken_at"} | set(PASSTHROUGH_COLUMNS)
 
 
@@ -119,17 +118,10 @@ def analyze_frame(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> p
 def _csv_frame(frame: pd.DataFrame) -> pd.DataFrame:
     """The frame as CSV text: result cells by the commissioning-record writer, input cells neutralised."""
     text = frame.astype(object).where(frame.notna(), None)
-    results = [result_cells(dict(zip(C.RESULT_COLUMNS, row)) | {"flags": _codes(row[_FLAGS_AT]),
-                                                               "findings": None})
-               for row in text[list(C.RESULT_COLUMNS)].itertuples(index=False, name=None)]
-    cells = pd.DataFrame(results, columns=list(C.RESULT_COLUMNS), index=text.index, dtype=object)
-    cells["findings"] = [neutralise(v or "") for v in text["findings"]]
+    cells = pd.DataFrame({c: result_column(c, text[c].to_numpy()) for c in C.RESULT_COLUMNS}, index=text.index,
+                         dtype=object)
     inputs = text.drop(columns=list(C.RESULT_COLUMNS)).map(_input_cell)
     return pd.concat([inputs, cells], axis=1)
-
-
-def _codes(flags) -> list[str]:
-    return [c for c in (flags or "").split(";") if c]
 
 
 def _input_cell(value):

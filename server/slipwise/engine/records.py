@@ -53,8 +53,7 @@ RESULT_DECIMALS: dict[str, int] = {
     "predicted_current_a": 2,                                           # currents 0.01 A
     "predicted_power_factor": 3,
 }
-#: Text result columns, written neutralised.
-_TEXT_RESULTS = tuple(c for c in C.RESULT_COLUMNS if c in C.TEXT_RESULT_COLUMNS)
+_SPEC = {column: f".{places}f" for column, places in RESULT_DECIMALS.items()}
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
 
 
@@ -65,17 +64,26 @@ def neutralise(value: Any) -> Any:
     return value
 
 
+def _fixed(x: float, spec: str) -> str:
+    if x != x or x in (math.inf, -math.inf):
+        return ""
+    text = format(x, spec)
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return "0" if text == "-0" else text
+
+
 def number_cell(column: str, value) -> str:
     """One numeric result as CSV text, with the decimals :data:`RESULT_DECIMALS` gives its column."""
     if value is None:
         return ""
-    x = float(value)
-    if not math.isfinite(x):
-        return ""
-    text = f"{x:.{RESULT_DECIMALS[column]}f}"
-    if "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return "0" if text == "-0" else text
+    return _fixed(float(value), _SPEC[column])
+
+
+def number_column(column: str, values) -> list[str]:
+    """:func:`number_cell` over a whole column (``slipwise analyze``'s path; the same text)."""
+    spec = _SPEC[column]
+    return ["" if v is None else _fixed(float(v), spec) for v in values]
 
 
 def result_cells(result: Mapping[str, Any]) -> list[str]:
@@ -92,6 +100,17 @@ def result_cells(result: Mapping[str, Any]) -> list[str]:
         else:
             cells.append(number_cell(col, value))
     return cells
+
+
+def result_column(column: str, values) -> list:
+    """One result column of ``slipwise analyze``'s frame as CSV cells, the same text :func:`result_cells` gives.
+
+    ``values`` hold what :func:`interpret_columns` gives: numbers, or for
+    ``flags`` and ``findings`` the already joined text (:func:`findings_text`).
+    """
+    if column in C.TEXT_RESULT_COLUMNS:
+        return [neutralise(v or "") for v in values]
+    return number_column(column, values)
 
 
 def cautions_cell(result: Mapping[str, Any]) -> str:
