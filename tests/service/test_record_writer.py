@@ -11,7 +11,7 @@ import pandas as pd
 
 from slipwise import contract as C
 from slipwise.cli_analyze import _csv_frame, analyze_frame
-from slipwise.engine.records import RESULT_DECIMALS
+from slipwise.engine.records import RESULT_DECIMALS, number_cell
 
 from .conftest import reading_body
 
@@ -75,7 +75,11 @@ def test_the_rule_table_is_the_only_place_digits_are_set():
         text = path.read_text(encoding="utf-8")
         assert "float_format" not in text and not re.search(r"\bround\(", text), path
         assert not re.search(r":\.\d+f\}", text), path
+    # the writer itself holds no digit count of its own: every format comes from the table
     records = (SERVER / "engine" / "records.py").read_text(encoding="utf-8")
-    assert len(re.findall(r"RESULT_DECIMALS\[", records)) == 1
+    assert not re.search(r"[\"']\.\d+f", records) and not re.search(r":\.\d+f\}", records)
     numeric = [c for c in C.RESULT_COLUMNS if c not in C.TEXT_RESULT_COLUMNS]
     assert sorted(RESULT_DECIMALS) == sorted(numeric)
+    # and the table is what the cells follow: 1/3 has exactly the table's decimals in each column
+    for col, places in RESULT_DECIMALS.items():
+        assert _decimals(number_cell(col, 1 / 3)) == places, col
