@@ -16,7 +16,7 @@ References
 .. [1] US DOE, "Determining Electric Motor Load and Efficiency",
    DOE/GO-10097-517 (loss categories and their behaviour with load).
 .. [2] IEC 60034-1, tolerance on efficiency: -15 % of (1 - eta) for
-   motors up to 150 kW, -10 % above (as commonly quoted).
+   motors up to 150 kW, -10 % above (:func:`loss_tolerance_high`).
 """
 
 from __future__ import annotations
@@ -230,14 +230,47 @@ def efficiency_pu(output_w, losses_w):
         return np.where(tot > 0, out / tot, np.nan)
 
 
-#: Multipliers bounding the actual rated losses against the nameplate's:
-#: IEC 60034-1 allows the efficiency to fall short by 15 % of (1 - eta) (up
-#: to 150 kW); the lower side is a common spread of measured motors.
+#: Multipliers bounding the actual rated losses against the nameplate's, for
+#: motors up to 150 kW: IEC 60034-1 allows the efficiency to fall short by
+#: 15 % of (1 - eta); the lower side is a common spread of measured motors.
 LOSS_TOLERANCE = (0.90, 1.15)
+#: Rated output up to which the 15 % tolerance applies [kW] (IEC 60034-1).
+LOSS_TOLERANCE_LIMIT_KW = 150.0
+#: Upper loss multiplier above that output: -10 % of (1 - eta) (IEC 60034-1).
+LOSS_TOLERANCE_HIGH_ABOVE_LIMIT = 1.10
+
+
+def loss_tolerance_high(rated_power_kw):
+    """Upper multiplier on the nameplate's rated losses allowed by IEC 60034-1 [-].
+
+    Parameters
+    ----------
+    rated_power_kw : numeric
+        Rated output [kW]; NaN (unknown) takes the wider, up-to-150 kW value.
+
+    Returns
+    -------
+    numeric
+        1.15 up to and including 150 kW (efficiency may fall short by 15 % of
+        ``1 - eta``), 1.10 above (10 % of ``1 - eta``).
+
+    References
+    ----------
+    .. [1] IEC 60034-1, table of tolerances: efficiency, machines up to
+       150 kW ``-15 % of (1 - eta)``, above 150 kW ``-10 % of (1 - eta)``.
+
+    Examples
+    --------
+    >>> loss_tolerance_high([150.0, 160.0]).tolist()
+    [1.15, 1.1]
+    """
+    p = np.asarray(rated_power_kw, dtype=float)
+    with np.errstate(invalid="ignore"):
+        return np.where(p > LOSS_TOLERANCE_LIMIT_KW, LOSS_TOLERANCE_HIGH_ABOVE_LIMIT, LOSS_TOLERANCE[1])
 
 
 def efficiency_band(budgets, output_w, output_low_w, output_high_w, flux_ratio, frequency_ratio,
-                    speed_ratio, current_ratio, current_accuracy_pct, slip):
+                    speed_ratio, current_ratio, current_accuracy_pct, slip, rated_power_kw=np.nan):
     """Efficiency at the operating point and its band.
 
     Parameters
@@ -251,6 +284,9 @@ def efficiency_band(budgets, output_w, output_low_w, output_high_w, flux_ratio, 
         Operating conditions (see :func:`operating_losses_w`).
     current_accuracy_pct : numeric
         Clamp meter accuracy [% of reading].
+    rated_power_kw : numeric, optional
+        Rated output [kW]: chooses the IEC 60034-1 loss tolerance
+        (:func:`loss_tolerance_high`); unknown (NaN) takes the 15 % one.
 
     Returns
     -------
@@ -270,10 +306,11 @@ def efficiency_band(budgets, output_w, output_low_w, output_high_w, flux_ratio, 
     ir = np.asarray(current_ratio, dtype=float)
     args = (flux_ratio, frequency_ratio, speed_ratio)
     eta = efficiency_pu(output_w, operating_losses_w(central, *args, ir, slip, output_w))
+    tol_high = loss_tolerance_high(rated_power_kw)
     low, high = eta, eta
     for p in (output_low_w, output_high_w):
         lost = [operating_losses_w(b, *args, ir * k, slip, p) for b in budgets[1:] for k in (1 - acc, 1 + acc)]
-        hi_loss = LOSS_TOLERANCE[1] * np.fmax(np.fmax(lost[0], lost[1]), np.fmax(lost[2], lost[3]))
+        hi_loss = tol_high * np.fmax(np.fmax(lost[0], lost[1]), np.fmax(lost[2], lost[3]))
         lo_loss = LOSS_TOLERANCE[0] * np.fmin(np.fmin(lost[0], lost[1]), np.fmin(lost[2], lost[3]))
         low = np.fmin(low, efficiency_pu(p, hi_loss))
         high = np.fmax(high, efficiency_pu(p, lo_loss))

@@ -22,6 +22,45 @@ LOAD_LAWS = ("variable_torque", "constant_torque", "constant_power", "high_break
 BREAKAWAY_SPEED_PU = 0.1
 
 
+def kloss_torque(slip, breakdown_slip, breakdown_torque):
+    """Motor torque by the Kloss formula.
+
+    Parameters
+    ----------
+    slip : numeric
+        Slip [pu].
+    breakdown_slip : numeric
+        Slip at breakdown torque [pu].
+    breakdown_torque : numeric
+        Breakdown torque (any unit; the result has the same unit).
+
+    Returns
+    -------
+    numeric
+        ``T = 2 T_k / (s / s_k + s_k / s)``.
+
+    Notes
+    -----
+    Neglects stator resistance; exact for the circuit with ``R1 = 0``. It is a
+    simplification: the fitted circuit is used for the reported figures.
+
+    References
+    ----------
+    .. [1] M. Kloss, the classical two-parameter torque-slip formula, as given
+       in standard electric-machinery texts.
+
+    Examples
+    --------
+    >>> float(kloss_torque(0.2, 0.2, 250.0))
+    250.0
+    """
+    s = np.asarray(slip, dtype=float)
+    sk = np.asarray(breakdown_slip, dtype=float)
+    tk = np.asarray(breakdown_torque, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(s == 0, 0.0, 2.0 * tk / (s / sk + sk / s))
+
+
 def kloss_slope_nm_per_rpm(slip, breakdown_slip, breakdown_torque_nm, sync_speed_rpm):
     """Slope of the motor's torque-speed curve by the Kloss form [N·m/rpm].
 
@@ -43,7 +82,7 @@ def kloss_slope_nm_per_rpm(slip, breakdown_slip, breakdown_torque_nm, sync_speed
 
     Notes
     -----
-    Derivative of the Kloss formula ``T = 2 T_k / (s/s_k + s_k/s)`` with
+    Derivative of the Kloss formula (:func:`kloss_torque`) with
     respect to slip, ``dT/ds = 2 T_k (s_k/s^2 - 1/s_k) / (s/s_k + s_k/s)^2``,
     and ``dn = -n_s ds``. The Kloss form neglects stator resistance; it is
     used through the fitted circuit's breakdown point, a documented
@@ -254,3 +293,44 @@ def breakdown_margin(breakdown_torque, operating_torque):
     ot = np.asarray(operating_torque, dtype=float)
     with np.errstate(divide="ignore", invalid="ignore"):
         return np.where(ot > 0, bt / ot, np.nan)
+
+
+def breakdown_margin_band(breakdown_now_pct, breakdown_rated_pct, breakdown_low_rated_pct,
+                          operating_torque_pct, operating_torque_high_pct):
+    """Breakdown margin, central and pessimistic-low [-].
+
+    Parameters
+    ----------
+    breakdown_now_pct : numeric
+        Breakdown torque at the present voltage and frequency, from the
+        circuit fitted to ``breakdown_rated_pct`` [% of rated torque].
+    breakdown_rated_pct : numeric
+        The breakdown torque at rated voltage the circuit was fitted to
+        (nameplate or :func:`typical.typical_breakdown_torque_pct`) [%].
+    breakdown_low_rated_pct : numeric
+        Lowest credible breakdown torque at rated voltage
+        (:func:`typical.breakdown_torque_low_pct`) [%].
+    operating_torque_pct, operating_torque_high_pct : numeric
+        Operating torque, central and high end of its band [% of rated
+        torque]; floored at 1 %.
+
+    Returns
+    -------
+    tuple of numeric
+        ``(central, low)``: ``T_b,now / T_op`` and
+        ``T_b,now * (T_b,low / T_b,rated) / T_op,high`` (the present voltage's
+        effect taken from the circuit, the rated-voltage value at its lowest,
+        the load at its highest). NaN where an input is missing.
+
+    Examples
+    --------
+    >>> [round(float(x), 3) for x in breakdown_margin_band(240.0, 240.0, 160.0, 100.0, 110.0)]
+    [2.4, 1.455]
+    """
+    now = np.asarray(breakdown_now_pct, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        scale = np.asarray(breakdown_low_rated_pct, dtype=float) / np.asarray(breakdown_rated_pct, dtype=float)
+        central = breakdown_margin(now, np.maximum(np.asarray(operating_torque_pct, dtype=float), 1.0))
+        low = breakdown_margin(now * np.fmin(scale, 1.0),
+                               np.maximum(np.asarray(operating_torque_high_pct, dtype=float), 1.0))
+    return central, low

@@ -14,9 +14,9 @@ from slipwise.store.readings import Submission
 from slipwise.store.types import utcnow
 
 from .auth import requires
-from .interpretation import interpret, torque_speed
+from .interpretation import interpret, torque_speed, with_stored_result
 from .params import date_param, flag_param, int_param, query, text_param
-from .picture import render_torque_speed_svg
+from .picture import picture_title, render_torque_speed_svg
 from .security import SVG_CONTENT_SECURITY_POLICY, json_body
 from .state import state
 
@@ -76,16 +76,18 @@ def picture(reading_id: int):
     st = state()
     with st.db.read() as conn:
         record, summary = store_readings.record_for_picture(conn, reading_id)
-    # a stored reading never changes, so its picture depends only on the engine that draws it
+    # a stored reading never changes and its points come from its stored result, so its picture
+    # depends only on the engine that draws the motor's curves
     key = reading_id
     with st.picture_lock:
         svg = st.picture_cache.get(key)
         if svg is not None:
             st.picture_cache.move_to_end(key)
     if svg is None:
-        curve = torque_speed(record)
-        svg = render_torque_speed_svg(curve, title=f"{summary['tag']} — reading {reading_id}, "
-                                                   f"taken {summary['taken_at']}")
+        with st.db.read() as conn:
+            stored = store_readings.get_reading(conn, reading_id)
+        curve = with_stored_result(torque_speed(record), stored["result"], record["speed_rpm"])
+        svg = render_torque_speed_svg(curve, title=picture_title(summary, stored["result"], reading_id))
         with st.picture_lock:
             st.picture_cache[key] = svg
             while len(st.picture_cache) > st.picture_cache_size:
