@@ -22,7 +22,7 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 PHYS = "server/slipwise/physics/"
-ENGINE = "server/slipwise/engine.py"
+ENGINE = "server/slipwise/engine/pipeline.py"
 
 
 @dataclass(frozen=True)
@@ -37,8 +37,8 @@ class Mutation:
 
 MUTATIONS = (
     Mutation("M1", "stator copper loss ~ load^2 instead of current^2 (input-power method)", ENGINE,
-             "stator_now = central.stator_w * current_ratio ** 2",
-             "stator_now = central.stator_w * out_slip.value ** 2",
+             "efficiency.scaled_losses_w(central, flux, freq_ratio, speed_ratio, current_ratio)",
+             "efficiency.scaled_losses_w(central, flux, freq_ratio, speed_ratio, out_slip.value)",
              ("tests/engine/test_physics_laws.py",)),
     Mutation("M1b", "stator copper loss ~ load^2 instead of current^2 (loss model)", PHYS + "efficiency.py",
              "stator = budget.stator_w * np.asarray(current_ratio, dtype=float) ** 2",
@@ -57,11 +57,11 @@ MUTATIONS = (
              "half_high = _combine_rel(tol, tach, volt)",
              ("tests/physics/test_load.py",)),
     Mutation("M5", "rotor loss s P instead of s/(1 - s) P (rated budget)", PHYS + "efficiency.py",
-             "rotor = s / (1.0 - s) * (p_out + fw)",
+             "rotor = rotor_copper_loss_w(s, p_out + fw)",
              "rotor = s * (p_out + fw)",
              ("tests/physics/test_efficiency.py",)),
     Mutation("M5b", "rotor loss s P instead of s/(1 - s) P (operating point)", PHYS + "efficiency.py",
-             "rotor = s / (1.0 - s) * (np.asarray(output_w, dtype=float) + fw)",
+             "rotor = rotor_copper_loss_w(s, np.asarray(output_w, dtype=float) + fw)",
              "rotor = s * (np.asarray(output_w, dtype=float) + fw)",
              ("tests/physics/test_efficiency.py",)),
     Mutation("M6", "slip taken at the measured frequency on mains (slip speed with V/V_r only)", ENGINE,
@@ -74,12 +74,12 @@ MUTATIONS = (
              "core = budget.core_w",
              ("tests/physics/test_efficiency.py",)),
     Mutation("M7b", "core loss held constant (input-power method)", ENGINE,
-             "core_now = central.core_w * flux ** 2 * freq_ratio",
-             "core_now = central.core_w",
+             "efficiency.scaled_losses_w(central, flux, freq_ratio, speed_ratio, current_ratio)",
+             "efficiency.scaled_losses_w(central, 1.0, 1.0, speed_ratio, current_ratio)",
              ("tests/engine/test_physics_laws.py",)),
-    Mutation("M8", "locked-rotor torque not scaled by V^2", ENGINE,
-             'lrt_now = pl("lrt_pct") * (v / v_r) ** 2',
-             'lrt_now = pl("lrt_pct")',
+    Mutation("M8", "locked-rotor torque not scaled by V^2", PHYS + "torque_speed.py",
+             "lrt_now = locked_rotor_torque_pct * (voltage_v / rated_voltage_v) ** 2",
+             "lrt_now = locked_rotor_torque_pct",
              ("tests/engine/test_physics_laws.py",)),
     Mutation("M9", "hp taken as 1000 W", PHYS + "units.py",
              "HORSEPOWER_W = 550.0 * FOOT_M * POUND_FORCE_N",

@@ -213,3 +213,25 @@ def test_current_method_takes_a_no_load_current_band():
     # a zero-width band is the plain method
     same = load.current_method(16.0, 20.0, 9.0, 8.0, 1.05, 1.0, 2.0, 9.0, 9.0)
     assert same == plain
+
+
+def test_input_power_accuracy_root_sum_square():
+    # GUM: relative errors of a product add in quadrature; pf read to +-0.02 absolute
+    # (load.POWER_FACTOR_ACCURACY, common practice): 0.5 % V, 1 % I, pf 0.85
+    from slipwise.physics import load as _load
+    expected = 100 * np.sqrt(0.005 ** 2 + 0.01 ** 2 + (0.02 / 0.85) ** 2)
+    assert _load.input_power_accuracy_pct(0.5, 1.0, 0.85) == pytest.approx(expected)
+
+
+def test_widen_scales_the_band_about_the_value():
+    from slipwise.physics import load as _load
+    e = _load.widen(_load.Estimate(0.8, 0.7, 0.95), 2.0)
+    assert (e.value, e.low, e.high) == pytest.approx((0.8, 0.6, 1.1))
+    # factor 1 leaves it unchanged
+    assert tuple(_load.widen(_load.Estimate(0.8, 0.7, 0.95), 1.0)) == pytest.approx((0.8, 0.7, 0.95))
+
+
+def test_magnetising_current_follows_flux():
+    # saturation neglected: no-load current proportional to V/f (common practice)
+    from slipwise.physics import load as _load
+    assert _load.magnetising_current_a(8.0, 0.9) == pytest.approx(7.2)

@@ -263,6 +263,23 @@ def input_power_w(voltage_v, current_a, power_factor):
         np.asarray(power_factor, dtype=float)
 
 
+def input_power_accuracy_pct(voltage_accuracy_pct, current_accuracy_pct, power_factor):
+    """Accuracy of an input power computed from V, I and pf readings [%].
+
+    Root-sum-square of the relative errors of the three readings, the power
+    factor's taken as :data:`POWER_FACTOR_ACCURACY` absolute (GUM, uncorrelated
+    inputs to a product).
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return 100.0 * np.sqrt((voltage_accuracy_pct / 100) ** 2 + (current_accuracy_pct / 100) ** 2
+                               + (POWER_FACTOR_ACCURACY / power_factor) ** 2)
+
+
+def magnetising_current_a(rated_no_load_current_a, flux_ratio):
+    """No-load (magnetising) current at a flux [A]: proportional to flux, saturation neglected (in the band)."""
+    return rated_no_load_current_a * flux_ratio
+
+
 def input_power_method(input_w, input_accuracy_pct, core_loss_w, friction_windage_w, stator_loss_w,
                        slip, rated_output_w, fixed_loss_band=(0.67, 1.5), stator_loss_band=(0.8, 1.2)):
     """Load by the input-power method with losses at the operating point.
@@ -313,6 +330,12 @@ def input_power_method(input_w, input_accuracy_pct, core_loss_w, friction_windag
     low = out(p_in * (1 - acc), fixed_loss_band[1], stator_loss_band[1])
     high = out(p_in * (1 + acc), fixed_loss_band[0], stator_loss_band[0])
     return Estimate(*(np.clip(a, 0.0, None) for a in (value, low, high)))
+
+
+def widen(estimate: Estimate, factor) -> Estimate:
+    """The same estimate with its band scaled by ``factor`` about the central value [pu]."""
+    e = estimate
+    return Estimate(e.value, e.value - (e.value - e.low) * factor, e.value + (e.high - e.value) * factor)
 
 
 def fuse(estimates):

@@ -114,14 +114,6 @@ def add_user(conn: Connection, username: str, role: str, password: str | None, f
     return get_user(conn, new_id)
 
 
-def set_password(conn: Connection, username: str, password: str, actor: dict | None = None,
-                 scrypt_n: int = SCRYPT_N) -> None:
-    check_password(password)
-    user = get_user_by_name(conn, username)
-    conn.execute(update(users).where(users.c.id == user["id"]).values(password_hash=hash_password(password, scrypt_n)))
-    conn.execute(delete(sessions).where(sessions.c.user_id == user["id"]))
-    audit.record(conn, actor, "user.password", "user", user["id"], {"username": username})
-
 
 def get_user(conn: Connection, user_id: int) -> dict:
     row = conn.execute(select(users).where(users.c.id == user_id)).mappings().first()

@@ -28,9 +28,6 @@ def site_id(conn: Connection, name: str, create: bool = False) -> int | None:
         return conn.execute(select(sites.c.id).where(sites.c.name == name)).scalar_one()
 
 
-def list_sites(conn: Connection) -> list[str]:
-    return list(conn.execute(select(sites.c.name).order_by(sites.c.name)).scalars())
-
 
 def _latest_revision_ids():
     return (select(motor_revisions.c.motor_id, func.max(motor_revisions.c.revision).label("revision"))
@@ -82,12 +79,6 @@ def get_motor(conn: Connection, motor_id: int, with_history: bool = False) -> di
             for r in conn.execute(q).mappings()]
     return d
 
-
-def get_revision(conn: Connection, revision_id: int) -> dict:
-    row = conn.execute(select(motor_revisions).where(motor_revisions.c.id == revision_id)).mappings().first()
-    if row is None:
-        raise NotFoundError(f"no motor revision {revision_id}", "motor_revision_id")
-    return dict(row)
 
 
 def create_motor(conn: Connection, actor: dict | None, site: str, tag: str, fields: Mapping[str, Any]) -> dict:
