@@ -1,7 +1,7 @@
 """``slipwise``: the command line. Parses options, calls the services and the web app, prints.
 
 Subcommands: ``serve``, ``demo``, ``user add``, ``user list``, ``token create``,
-and ``analyze`` (in ``slipwise.cli_analyze``).
+``db upgrade``, ``db backup`` and ``analyze`` (in ``slipwise.cli_analyze``).
 
 Exit status: 0 success, 1 refused (a user that exists, a bad password...),
 2 usage or configuration error.
@@ -44,14 +44,46 @@ def _config(args, **extra) -> dict[str, Any]:
     return config
 
 
-def _database(args):
-    """The configured database, upgraded to this version's schema."""
+def _open_database(args):
+    """The configured database, as it is."""
     from slipwise.store import Database, sqlite_url
     url = (getattr(args, "database_url", None) or os.environ.get("DATABASE_URL")
            or sqlite_url(_data_dir(args) / "slipwise.sqlite3"))
-    db = Database(url, schema=os.environ.get("SLIPWISE_DB_SCHEMA") or None)
+    return Database(url, schema=os.environ.get("SLIPWISE_DB_SCHEMA") or None)
+
+
+def _database(args):
+    """The configured database, upgraded to this version's schema."""
+    db = _open_database(args)
     db.upgrade()
     return db
+
+
+# --- db upgrade / backup ----------------------------------------------------------
+def cmd_db_upgrade(args) -> int:
+    db = _open_database(args)
+    try:
+        done = db.migrate()
+    finally:
+        db.dispose()
+    print(f"database {db.describe()}: {done.describe()}")
+    return 0
+
+
+def cmd_db_backup(args) -> int:
+    db = _open_database(args)
+    try:
+        if db.dialect != "sqlite":
+            raise CliError(f"{db.describe()} is PostgreSQL: slipwise db backup copies SQLite files; use "
+                           "pg_dump (e.g. pg_dump -Fc -f slipwise.dump DBNAME) or pg_basebackup", 2)
+        try:
+            dest = db.backup(args.file)
+        except (ValueError, OSError) as e:
+            raise CliError(str(e), 2) from None
+    finally:
+        db.dispose()
+    print(f"database {db.describe()}: copied to {dest} ({dest.stat().st_size} bytes)")
+    return 0
 
 
 # --- user / token -------------------------------------------------------------
@@ -170,6 +202,19 @@ def build_parser() -> argparse.ArgumentParser:
     create.add_argument("name", help="the user the token acts as")
     create.add_argument("--label", help="what the token is for (kept with its hash)")
     create.set_defaults(func=cmd_token_create)
+
+    dbp = sub.add_parser("db", help="database upkeep: upgrade the schema, back up an SQLite database")
+    db_sub = dbp.add_subparsers(dest="db_command", metavar="ACTION")
+    db_sub.required = True
+    up = db_sub.add_parser("upgrade", help="bring a database of any earlier release to this release's schema "
+                                           "(an SQLite file is copied beside itself first)")
+    _common(up)
+    up.set_defaults(func=cmd_db_upgrade)
+    bk = db_sub.add_parser("backup", help="copy the SQLite database to FILE, consistently, while servers "
+                                          "write (PostgreSQL: use pg_dump)")
+    _common(bk)
+    bk.add_argument("file", help="the copy to write (must not exist)")
+    bk.set_defaults(func=cmd_db_backup)
 
     add_analyze_parser(sub)
     return parser

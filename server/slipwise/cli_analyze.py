@@ -16,6 +16,7 @@ import pandas as pd
 
 from . import contract as C
 from .engine import InputError, interpret_columns, thresholds_from_mapping
+from .engine.records import cautions_cell, neutralise, result_column
 
 #: Columns carried through from the input untouched (site records, notes).
 PASSTHROUGH_COLUMNS = ("site", "location", "description", "technician", "notes", "reading_ref")
@@ -91,6 +92,10 @@ def analyze_frame(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> p
     cols = {c: frame[c].to_numpy() for c in frame.columns if c in C.INPUT_FIELDS}
     out = interpret_columns(cols, thresholds)
     result = pd.DataFrame({c: out[c] for c in C.RESULT_COLUMNS})
+    # cautions per distinct combination of flags (as the findings), blank for a row not interpreted
+    combo_cautions = np.array([cautions_cell({"findings": f}) for f in out["_combination_findings"]] + [""],
+                              dtype=object)
+    cautions = combo_cautions[out["_combination"]]
     if missing_motor is not None and missing_motor.any():
         idx = np.flatnonzero(missing_motor)
         for c in C.RESULT_COLUMNS:
@@ -101,15 +106,34 @@ def analyze_frame(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> p
         result.loc[idx, "error"] = [f"tag {frame['tag'].iloc[i]!r} is not in the motors file" for i in idx]
         result.loc[idx, "error_field"] = "tag"
         result.loc[idx, "engine_version"] = C.ENGINE_VERSION
+        cautions[idx] = ""
     result["poles"] = pd.array(np.where(np.isnan(result["poles"].to_numpy(dtype=float)), None,
                                         result["poles"].to_numpy(dtype=float)), dtype="Int64")
-    keep = frame.drop(columns=[c for c in frame.columns if c in result.columns])
-    return pd.concat([keep.reset_index(drop=True), result], axis=1)
+    keep = frame.drop(columns=[c for c in frame.columns if c in result.columns or c == "cautions"])
+    # the result columns stay last; the cautions (as in the export) come just before them
+    keep = keep.reset_index(drop=True).assign(cautions=cautions)
+    return pd.concat([keep, result], axis=1)
+
+
+def _csv_frame(frame: pd.DataFrame) -> pd.DataFrame:
+    """The frame as CSV text: result cells by the commissioning-record writer, input cells neutralised."""
+    text = frame.astype(object).where(frame.notna(), None)
+    cells = pd.DataFrame({c: result_column(c, text[c].to_numpy()) for c in C.RESULT_COLUMNS}, index=text.index,
+                         dtype=object)
+    inputs = text.drop(columns=list(C.RESULT_COLUMNS)).map(_input_cell)
+    return pd.concat([inputs, cells], axis=1)
+
+
+def _input_cell(value):
+    """An input cell as read: numbers in their shortest form (no float noise), text neutralised."""
+    if isinstance(value, float):
+        return f"{value:.15g}"
+    return neutralise(value)
 
 
 def _write(frame: pd.DataFrame, output, fmt: str) -> None:
     if fmt == "csv":
-        frame.to_csv(output, index=False, float_format="%.6g", lineterminator="\n")
+        _csv_frame(frame).to_csv(output, index=False, lineterminator="\n")
         return
     for record in frame.to_dict(orient="records"):
         clean = {}

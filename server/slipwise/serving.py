@@ -82,7 +82,7 @@ def serve(args, config: dict[str, Any]) -> int:
                                          or os.environ.get("DATABASE_URL")}), schema=schema)
     upgraded = True
     try:
-        before, after = db.upgrade()
+        done = db.migrate()
     except SchemaError as e:
         print(f"slipwise: {e}", file=sys.stderr)
         return 2
@@ -95,10 +95,8 @@ def serve(args, config: dict[str, Any]) -> int:
         upgraded = False
     finally:
         db.dispose()
-    if upgraded and before != after:
-        print(f"database {db.describe()}: schema upgraded from version {before} to {after}")
-    elif upgraded:
-        print(f"database {db.describe()}: schema version {after}")
+    if upgraded:
+        print(f"database {db.describe()}: {done.describe()}")
     if not config.get("SECRET_KEY") and not os.environ.get("SLIPWISE_SECRET_KEY"):
         from slipwise.web import load_secret
         load_secret(data_dir)  # create it once here, not racing in each worker

@@ -1,90 +1,17 @@
-// The field page: session, screens by URL hash, connection state, the outbox count and replay.
+// The field page's entry: sign-in and sign-out, the theme, the route table, start-up.
+// Nothing imports this module; the screens reach the router, shell and sending modules directly.
 
-import { api, ApiError, getSession, login, logout, NetworkError } from "./api.js";
+import { ApiError, getSession, login, logout, NetworkError } from "./api.js";
 import { $, clear, h } from "./dom.js";
 import * as outbox from "./outbox.js";
-import * as tech from "./technician.js";
+import { go, route, setRoutes } from "./router.js";
+import { refreshCount, sync } from "./sending.js";
+import { ctx, setReachable, showBanner, toast } from "./shell.js";
 import * as sup from "./supervisor.js";
-
-export const ctx = { user: null, reachable: navigator.onLine, readings: new Map() };
+import * as tech from "./technician.js";
 
 const USER_KEY = "slipwise.user"; // name and role only: offline, the page still knows who is working
 const THEME_KEY = "slipwise.theme";
-
-// --- small shared helpers -------------------------------------------------------------------
-let toastTimer = null;
-export function toast(text) {
-  const el = $("#toast");
-  el.textContent = text;
-  el.classList.add("show");
-  clearTimeout(toastTimer);
-  toastTimer = setTimeout(() => el.classList.remove("show"), 4000);
-}
-
-export function go(hash) {
-  if (location.hash === hash) route();
-  else location.hash = hash;
-}
-
-export function setReachable(ok) {
-  ctx.reachable = ok;
-  const net = $("#net");
-  net.textContent = ok ? "online" : "offline – readings stay on this tablet";
-  net.className = "pill " + (ok ? "online" : "offline");
-}
-
-/** POST a reading body; used by the outbox for new readings and replays alike. */
-export function sendReading(body) {
-  return api("POST", "/readings", body);
-}
-
-export async function refreshCount() {
-  const c = await outbox.counts();
-  const el = $("#outbox-count");
-  const parts = [`${c.waiting} unsent`];
-  if (c.rejected) parts.push(`${c.rejected} rejected`);
-  el.textContent = parts.join(" · ");
-  el.setAttribute("aria-label", `Outbox: ${c.waiting} unsent readings, ${c.rejected} rejected`);
-  el.classList.toggle("has-waiting", c.waiting > 0);
-  el.classList.toggle("has-rejected", c.rejected > 0);
-  el.dataset.waiting = String(c.waiting);
-  el.dataset.rejected = String(c.rejected);
-  return c;
-}
-
-/** Send what is waiting; say what happened. */
-export async function sync(reason) {
-  if (!ctx.user) return null;
-  const c = await outbox.counts();
-  if (!c.waiting) return null;
-  const summary = await outbox.replay(sendReading, ctx.user.username);
-  if (summary.sent || summary.rejected) setReachable(true);
-  if (summary.stopped === "network") {
-    setReachable(false);
-    askForBackgroundSync();
-  }
-  if (summary.stopped === "login") showBanner("Sign in again to send the readings waiting in the outbox.", "#/login");
-  const bits = [];
-  if (summary.sent) bits.push(`${summary.sent} sent`);
-  if (summary.rejected) bits.push(`${summary.rejected} rejected by the server (see Outbox)`);
-  if (bits.length) toast(`Outbox (${reason}): ${bits.join(", ")}.`);
-  await refreshCount();
-  return summary;
-}
-
-/** Where the browser supports it, the service worker is told to wake the page when the network returns. */
-export async function askForBackgroundSync() {
-  try {
-    const reg = await navigator.serviceWorker.ready;
-    if (reg.sync) await reg.sync.register("slipwise-outbox");
-  } catch { /* "online" and the next page load still send the outbox */ }
-}
-
-function showBanner(text, link) {
-  const b = $("#banner");
-  clear(b, text, link ? h("a", { class: "btn btn-quiet", href: link }, "Go") : null);
-  b.hidden = false;
-}
 
 // --- theme -------------------------------------------------------------------------------------
 function applyTheme(theme) {
@@ -98,53 +25,18 @@ function applyTheme(theme) {
 }
 
 // --- routing -------------------------------------------------------------------------------------
-const ROUTES = [
-  [/^#\/login$/, () => renderLogin],
-  [/^#\/motors$/, () => tech.renderMotors],
-  [/^#\/motor\/new$/, () => tech.renderMotorForm],
-  [/^#\/motor\/(\d+)$/, () => tech.renderReadingForm],
-  [/^#\/pending\/([0-9a-f-]{36})$/, () => tech.renderPending],
-  [/^#\/outbox\/([0-9a-f-]{36})\/fix$/, () => tech.renderCorrection],
-  [/^#\/outbox$/, () => tech.renderOutbox],
-  [/^#\/mine$/, () => tech.renderMine],
-  [/^#\/reading\/(\d+)$/, () => tech.renderReadingView],
-  [/^#\/log$/, () => sup.renderLog],
-];
-
-let routeSeq = 0;
-export function routeIsCurrent(seq) {
-  return seq === routeSeq;
-}
-
-async function route() {
-  const seq = ++routeSeq;
-  let hash = location.hash || "#/motors";
-  if (!ctx.user) hash = "#/login";
-  else if (hash === "#/login") hash = "#/motors";
-  if (hash === "#/log" && ctx.user && ctx.user.role !== "supervisor") hash = "#/mine";
-  const screen = $("#screen");
-  for (const a of document.querySelectorAll("#tabs a")) {
-    const cur = hash.startsWith(`#/${a.dataset.screen}`) || (a.dataset.screen === "motors" && hash.startsWith("#/motor"));
-    if (cur) a.setAttribute("aria-current", "page");
-    else a.removeAttribute("aria-current");
-  }
-  for (const [re, get] of ROUTES) {
-    const m = hash.match(re);
-    if (!m) continue;
-    try {
-      await get()(screen, m[1], seq);
-    } catch (e) {
-      if (!routeIsCurrent(seq)) return;
-      clear(screen, h("h1", { tabindex: "-1" }, "Something went wrong"), h("p", { class: "error" }, String(e.message || e)));
-    }
-    if (!routeIsCurrent(seq)) return;
-    const heading = screen.querySelector("h1");
-    // a new screen: move focus to its heading (screen readers announce it), unless it placed focus itself
-    if (heading && !screen.contains(document.activeElement)) heading.focus({ preventScroll: true });
-    return;
-  }
-  go("#/motors");
-}
+setRoutes([
+  [/^#\/login$/, renderLogin],
+  [/^#\/motors$/, tech.renderMotors],
+  [/^#\/motor\/new$/, tech.renderMotorForm],
+  [/^#\/motor\/(\d+)$/, tech.renderReadingForm],
+  [/^#\/pending\/([0-9a-f-]{36})$/, tech.renderPending],
+  [/^#\/outbox\/([0-9a-f-]{36})\/fix$/, tech.renderCorrection],
+  [/^#\/outbox$/, tech.renderOutbox],
+  [/^#\/mine$/, tech.renderMine],
+  [/^#\/reading\/(\d+)$/, tech.renderReadingView],
+  [/^#\/log$/, sup.renderLog],
+]);
 
 // --- screens owned here --------------------------------------------------------------------------
 async function renderLogin(el) {

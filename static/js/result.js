@@ -31,6 +31,11 @@ export const FLAG_WORDS = {
   readings_inconsistent: "Readings contradict each other",
   starting_torque_low: "Starting torque margin low",
 };
+/** A supervisor's review decision in words. */
+export function reviewWord(d) {
+  return { accepted: "accepted", retake: "retake asked", rejected: "rejected" }[d] || d;
+}
+
 const SEVERE = new Set(["overloaded", "over_service_factor", "near_breakdown", "readings_inconsistent", "speed_above_synchronous"]);
 
 export const SAFETY_NOTE = "These results support a qualified person's judgement; they do not replace it. Before any work on "

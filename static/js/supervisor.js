@@ -1,11 +1,11 @@
 // Supervisor screens: the day's log with filters, summary and sorting; review; CSV record.
 
 import { api, ApiError, NetworkError } from "./api.js";
-import { ctx, go, routeIsCurrent, toast } from "./app.js";
 import { clear, fmt, h, localDate, s, showTime } from "./dom.js";
 import { FIELD, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, READING_NUMBERS } from "./fields.js";
-import { FLAG_WORDS, LIMITS } from "./result.js";
-import { reviewWord } from "./technician.js";
+import { FLAG_WORDS, LIMITS, reviewWord } from "./result.js";
+import { go, routeIsCurrent } from "./router.js";
+import { toast } from "./shell.js";
 
 const FLAGS = Object.keys(FLAG_WORDS);
 const COLUMNS = [

@@ -1,12 +1,15 @@
 // Technician screens: pick or register a motor, enter a reading, see the result, the outbox, the day.
 
 import { api, ApiError, NetworkError } from "./api.js";
-import { askForBackgroundSync, ctx, go, routeIsCurrent, sendReading, setReachable, sync, toast } from "./app.js";
 import { $, clear, fmt, h, localDate, localIso, showTime, uuid } from "./dom.js";
 import { CHOICE_WORDS, crossCheck, FIELD, fmtRange, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, parseField, READING_NUMBERS } from "./fields.js";
 import * as outbox from "./outbox.js";
 import { provisional } from "./provisional.js";
-import { provisionalBlock, resultBlocks, SAFETY_NOTE } from "./result.js";
+import { provisionalBlock, resultBlocks, reviewWord, SAFETY_NOTE } from "./result.js";
+import { go, routeIsCurrent } from "./router.js";
+import { askForBackgroundSync, sendReading, sync } from "./sending.js";
+import { ctx, setReachable, toast } from "./shell.js";
+import { historyBlock, inputsBlock, reviewForm } from "./supervisor.js";
 
 const SITE_KEY = "slipwise.site";
 
@@ -406,10 +409,6 @@ export async function renderMine(el, _arg, seq) {
     })) : h("p", { class: "panel" }, "No stored readings today yet."));
 }
 
-export function reviewWord(d) {
-  return { accepted: "accepted", retake: "retake asked", rejected: "rejected" }[d] || d;
-}
-
 // --- One stored reading (technician and supervisor) ------------------------------------------------------------
 export async function renderReadingView(el, idText, seq) {
   const id = Number(idText);
@@ -454,9 +453,8 @@ export async function renderReadingView(el, idText, seq) {
     h("img", { class: "picture", src: `/api/v1/readings/${reading.id}/torque-speed.svg`, width: 750, height: 460,
       alt: `Torque–speed picture: the motor's torque at rated and measured voltage, the driven load's torque through the operating point at ${reading.inputs.speed_rpm} rpm, and the breakdown point.` }));
   const extra = [];
-  const sup = await import("./supervisor.js");
-  extra.push(sup.historyBlock(reading, motor));
-  if (ctx.user && ctx.user.role === "supervisor") extra.push(sup.reviewForm(reading, () => renderReadingView(el, idText, seq)), sup.inputsBlock(reading, motor));
+  extra.push(historyBlock(reading, motor));
+  if (ctx.user && ctx.user.role === "supervisor") extra.push(reviewForm(reading, () => renderReadingView(el, idText, seq)), inputsBlock(reading, motor));
   clear(el, head, h("div", { class: "two-col" },
     h("div", {}, resultBlocks(reading.result, { serviceFactor: sf, onRetake: retake })),
     h("div", {}, picture, extra, h("p", { class: "panel muted", id: "safety" }, SAFETY_NOTE))));

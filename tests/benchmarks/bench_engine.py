@@ -86,7 +86,7 @@ def main() -> None:
         df = pd.read_csv(path, keep_default_na=False, na_values=[""],
                          dtype={c: str for c in ("tag", "supply", "driven_load", "design", "taken_at")})
         t_read = time.perf_counter() - t0
-    engine._cache.clear()
+    engine.clear_caches()
     t0 = time.perf_counter()
     out = analyze_frame(df)
     t_interp = time.perf_counter() - t0

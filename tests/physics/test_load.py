@@ -144,3 +144,94 @@ def test_array_equals_scalar():
     for k, s in enumerate(slips):
         one = slip_load(s, 50.0)[0]
         assert (arr.value[k], arr.low[k], arr.high[k]) == pytest.approx((one.value, one.low, one.high))
+
+
+# --- one slip-torque law for mains and drive ----------------------------------------
+
+def test_slip_torque_law_worked_case():
+    # T/T_r = (n_slip / n_slip,r) (flux)^2 with flux = (V/f)/(V_r/f_r): at rated V and
+    # +2 % f a rated-torque point slips 1.02^2 times the rated slip speed (rotor frequency
+    # up by 1.02^2 to make up for 1/1.02 less flux, twice) and must read rated torque
+    assert load.slip_torque_pu(40.0 * 1.02 ** 2, 40.0, 1.0 / 1.02) == pytest.approx(1.0)
+    # rated point
+    assert load.slip_torque_pu(40.0, 40.0, 1.0) == pytest.approx(1.0)
+    # synchronous speed: no torque
+    assert load.slip_torque_pu(0.0, 40.0, 1.0) == 0.0
+    # scalar = array
+    np.testing.assert_allclose(load.slip_torque_pu([40.0, 20.0], 40.0, [1.0, 1.1]),
+                               [1.0, load.slip_torque_pu(20.0, 40.0, 1.1)])
+
+
+def test_slip_method_reads_rated_torque_at_plus_2_pct_frequency_against_the_circuit():
+    # an 11 kW 4-pole 400 V 50 Hz motor fitted as the engine does (IEEE 112 circuit);
+    # at rated V and 51 Hz find the slip where the circuit gives rated electromagnetic
+    # torque, read it as a tachometer would (slip speed at 51 Hz) and compare
+    from scipy.optimize import brentq
+
+    from slipwise.physics import circuit as ckt
+    c = ckt.fit_circuit(11e3, 400.0, 21.5, 50.0, 4, 1460.0, 0.81, 0.914, 2.7, 0.4, 0.30, 0.35)
+    t_rated = float(ckt.solve(c, 400.0, 50.0, 40.0 / 1500.0).torque_em_nm[0])
+    s = brentq(lambda x: float(ckt.solve(c, 400.0, 51.0, x).torque_em_nm[0]) - t_rated, 1e-4, 0.1)
+    slip_rpm = s * 1530.0
+    torque, _ = load.slip_method(slip_rpm, 40.0, (400.0 / 51.0) / (400.0 / 50.0), 1.0, 11.0, 0.0, 0.0,
+                                 600.0, False)
+    assert torque.value == pytest.approx(1.0, abs=0.01)
+    # the published mains form (s / s_r)(V / V_r)^2 reads this point about 2 % high
+    old, _ = load.slip_method(s * 1500.0, 40.0, 1.0, 1.0, 11.0, 0.0, 0.0, 600.0, False)
+    assert old.value == pytest.approx(1.02, abs=0.01)
+
+
+def test_slip_band_high_side_is_tol_over_one_minus_tol():
+    # nameplate slip within +-20 % (IEC 60034-1 / NEMA MG 1): the true rated slip may be
+    # 0.8 of the nameplate's, so the load may be 1/0.8 = 1.25 of the reading, not 1.2.
+    # Warm rotor at rated load, no tachometer or voltmeter error: the band is exactly that.
+    torque, _ = load.slip_method(40.0, 40.0, 1.0, 1.0, 11.0, 0.0, 0.0, 1e6, False)
+    assert torque.value == pytest.approx(1.0)                     # rated point
+    assert torque.high == pytest.approx(1.0 / 0.8)
+    assert torque.low == pytest.approx(1.0 / 1.2)
+    # below 1 kW +-30 %: 1/0.7
+    small, _ = load.slip_method(40.0, 40.0, 1.0, 1.0, 0.75, 0.0, 0.0, 1e6, False)
+    assert small.high == pytest.approx(1.0 / 0.7)
+
+
+# --- current method: flux factor and saturated no-load current -------------------------
+
+def test_current_method_scales_with_flux():
+    # torque ~ flux x active rotor current: the same currents at 110 % flux mean 110 % torque
+    base = load.current_method(16.0, 20.0, 8.0, 8.0, 1.0, 1.0, 2.0)
+    high = load.current_method(16.0, 20.0, 8.0, 8.0, 1.1, 1.0, 2.0)
+    assert high.value == pytest.approx(1.1 * base.value)
+
+
+def test_current_method_takes_a_no_load_current_band():
+    # a band of the no-load current [A] widens the load band: larger I0 -> lower load
+    plain = load.current_method(16.0, 20.0, 9.0, 8.0, 1.05, 1.0, 2.0)
+    banded = load.current_method(16.0, 20.0, 9.0, 8.0, 1.05, 1.0, 2.0, no_load_current_low_a=8.5,
+                                 no_load_current_high_a=10.5)
+    assert banded.value == plain.value
+    assert banded.low < plain.low and banded.high > plain.high
+    # a zero-width band is the plain method
+    same = load.current_method(16.0, 20.0, 9.0, 8.0, 1.05, 1.0, 2.0, 9.0, 9.0)
+    assert same == plain
+
+
+def test_input_power_accuracy_root_sum_square():
+    # GUM: relative errors of a product add in quadrature; pf read to +-0.02 absolute
+    # (load.POWER_FACTOR_ACCURACY, common practice): 0.5 % V, 1 % I, pf 0.85
+    from slipwise.physics import load as _load
+    expected = 100 * np.sqrt(0.005 ** 2 + 0.01 ** 2 + (0.02 / 0.85) ** 2)
+    assert _load.input_power_accuracy_pct(0.5, 1.0, 0.85) == pytest.approx(expected)
+
+
+def test_widen_scales_the_band_about_the_value():
+    from slipwise.physics import load as _load
+    e = _load.widen(_load.Estimate(0.8, 0.7, 0.95), 2.0)
+    assert (e.value, e.low, e.high) == pytest.approx((0.8, 0.6, 1.1))
+    # factor 1 leaves it unchanged
+    assert tuple(_load.widen(_load.Estimate(0.8, 0.7, 0.95), 1.0)) == pytest.approx((0.8, 0.7, 0.95))
+
+
+def test_magnetising_current_follows_flux():
+    # saturation neglected: no-load current proportional to V/f (common practice)
+    from slipwise.physics import load as _load
+    assert _load.magnetising_current_a(8.0, 0.9) == pytest.approx(7.2)

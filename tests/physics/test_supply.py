@@ -95,3 +95,19 @@ def test_array_equals_scalar():
     for fn in (supply.max_deviation_unbalance_pct, supply.voltage_unbalance_factor_pct):
         arr = fn(a, b, c)
         assert arr.tolist() == [float(fn(x, y, z)) for x, y, z in zip(a, b, c)]
+
+
+def test_drive_voltage_constant_v_per_f_then_rated():
+    # V/f drive: 400 V at 50 Hz -> 200 V at 25 Hz; field weakening above rated frequency keeps 400 V
+    assert supply.drive_voltage_v(400.0, np.array([25.0, 50.0, 60.0]), 50.0).tolist() == [200.0, 400.0, 400.0]
+
+
+def test_flux_ratio():
+    # (V/f)/(Vr/fr): 360 V at 50 Hz on a 400 V 50 Hz motor -> 0.9; 200 V at 25 Hz -> rated flux
+    assert supply.flux_ratio(360.0, 50.0, 400.0, 50.0) == pytest.approx(0.9)
+    assert supply.flux_ratio(200.0, 25.0, 400.0, 50.0) == pytest.approx(1.0)
+
+
+def test_zone_labels_match_the_codes():
+    assert supply.ZONE_LABELS[supply.DRIVE_ZONE_CODE] == "drive"
+    assert supply.iec_zone(0.0, 0.0) == "A"

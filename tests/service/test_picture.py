@@ -2,9 +2,16 @@
 
 from __future__ import annotations
 
+import re
 import xml.etree.ElementTree as ET
 
+import numpy as np
+
 import slipwise.web.readings as views
+from slipwise import contract, engine
+from slipwise.physics import load
+from slipwise.services import interpretation
+from slipwise.services import readings as reading_services
 
 
 def test_svg_picture_is_drawn_once_and_cached(app, tech, reading, monkeypatch):
@@ -30,3 +37,63 @@ def test_svg_picture_is_drawn_once_and_cached(app, tech, reading, monkeypatch):
     not_modified = tech.get(url, headers={"If-None-Match": first.headers["ETag"]})
     assert not_modified.status_code == 304
     assert tech.get("/api/v1/readings/98765/torque-speed.svg").status_code == 404
+
+
+def _point(svg: str, name: str) -> tuple[float, float]:
+    """(torque [N·m], speed [rpm]) of a labelled point, from the legend text matplotlib keeps in the SVG."""
+    m = re.search(rf"{name} (\d+) N·m at (\d+) rpm", svg)
+    assert m, name
+    return float(m.group(1)), float(m.group(2))
+
+
+def test_picture_draws_the_stored_result_not_a_new_interpretation(app, tech, reading, monkeypatch):
+    """A newer engine (here: one that fuses the load estimates 40 % higher) must not move the stored point."""
+    stored = tech.get(f"/api/v1/readings/{reading['id']}").get_json()
+    stored = stored.get("data", stored)
+    real_fuse = load.fuse
+
+    def heavier(methods):
+        fused, consistent, outlier = real_fuse(methods)
+        return load.Estimate(*(1.4 * np.asarray(x) for x in fused)), consistent, outlier
+
+    monkeypatch.setattr(load, "fuse", heavier)
+    record, _ = reading_services.picture_record(app.extensions["slipwise"].db, reading["id"])
+    now = engine.torque_speed_curve(record)
+    rated = now["rated_torque_nm"]
+    expected = stored["result"]["torque_pct"] / 100.0 * rated
+    # the patch works: the engine running now puts the operating point elsewhere
+    assert abs(now["operating_torque_nm"] - expected) > 0.2 * expected
+
+    svg = tech.get(f"/api/v1/readings/{reading['id']}/torque-speed.svg").get_data(as_text=True)
+    torque, speed = _point(svg, "operating point")
+    assert torque == round(expected) and speed == stored["inputs"]["speed_rpm"]
+    breakdown, _ = _point(svg, "breakdown")
+    assert breakdown == round(stored["result"]["breakdown_torque_now_pct"] / 100.0 * rated)
+    assert f"points from the stored result of engine {stored['result']['engine_version']}" in svg
+
+
+def test_the_caption_names_a_newer_engine_that_drew_the_curves(app, tech, reading, monkeypatch):
+    monkeypatch.setattr(contract, "ENGINE_VERSION", "9.9.9")
+    svg = tech.get(f"/api/v1/readings/{reading['id']}/torque-speed.svg").get_data(as_text=True)
+    assert "curves drawn by engine 9.9.9" in svg
+    assert f"points from the stored result of engine {reading['engine_version']}" in svg
+
+
+def test_with_stored_result_points_and_load_line():
+    speed = np.array([0.0, 750.0, 1475.0, 1500.0])
+    curve = {"speed_rpm": speed, "rated_torque_nm": 100.0, "sync_speed_rpm": 1500.0, "driven_load": "constant_torque",
+             "operating_speed_rpm": 1475.0, "operating_torque_nm": 80.0, "load_torque_nm": np.full(4, 80.0),
+             "breakdown_speed_rpm": 1300.0, "breakdown_torque_nm": 250.0}
+    stored = {"torque_pct": 60.0, "breakdown_torque_now_pct": 270.0, "sync_speed_rpm": 1500.0}
+    out = interpretation.with_stored_result(curve, stored, 1475.0)
+    # rated torque 100 N·m: 60 % and 270 % of it, the stored percentages
+    assert out["operating_torque_nm"] == 60.0 and out["operating_speed_rpm"] == 1475.0
+    assert out["breakdown_torque_nm"] == 270.0 and out["breakdown_speed_rpm"] == 1300.0
+    assert np.allclose(out["load_torque_nm"], 60.0)  # a constant-torque load through the stored point
+    # the engine running now finds no operating point: the load law is drawn through the stored one
+    out = interpretation.with_stored_result({**curve, "operating_speed_rpm": None, "operating_torque_nm": None,
+                                             "load_torque_nm": np.full(4, np.nan)}, stored, 1475.0)
+    assert np.allclose(out["load_torque_nm"], 60.0)
+    # the stored result had none: none is drawn, whatever the engine says now
+    out = interpretation.with_stored_result(curve, {**stored, "torque_pct": None}, 1475.0)
+    assert out["operating_torque_nm"] is None and np.isnan(out["load_torque_nm"]).all()

@@ -1,7 +1,7 @@
-"""Flags, their thresholds, and the plain-language findings that go with them.
+"""Flags: their thresholds and the combination mask that encodes them per row.
 
-Findings are built once per distinct combination of flags (a bit mask), not
-once per row, so a batch of a million readings costs a handful of strings.
+The judgements only (thresholds, masks); the plain-language findings and
+cautions that go with a flag live in :mod:`slipwise.engine.findings`.
 """
 
 from __future__ import annotations
@@ -82,82 +82,6 @@ class Thresholds:
         return bad
 
 
-CAUTION_ISOLATE = (
-    "Any inspection or correction of the motor, its terminal box or its supply must be done by a "
-    "qualified person with the circuit isolated, locked off and proved dead; local electrical codes "
-    "and licensed practice prevail.")
-CAUTION_KEEP_RUNNING = (
-    "Do not keep the motor in service in this condition without an engineering decision; any "
-    "work on it is for qualified persons with the circuit isolated and locked off; local electrical "
-    "codes and licensed practice prevail.")
-CAUTION_MEASURE = (
-    "Retake readings only with meters rated for the installation's measurement category, keeping "
-    "clear of rotating parts and live terminals; local electrical codes and licensed practice prevail.")
-
-_INCONSISTENT_TEXT = {
-    0: ("The slip-method load disagrees with the other load methods beyond their bands. "
-        "Re-check the speed: tachometer on the motor shaft itself (not a belt pulley or the driven shaft), "
-        "one reflective mark, and the nameplate's rated speed."),
-    1: ("The current-method load disagrees with the other load methods beyond their bands. "
-        "Re-check the currents: clamp around one phase conductor only (not a cable with two phases or "
-        "parallel conductors), the meter range, and the nameplate current for the connected voltage "
-        "(dual-voltage motors)."),
-    2: ("The input-power load disagrees with the other load methods beyond their bands. "
-        "Re-check the power reading: the analyser's clamp orientation and phase order, the power-factor "
-        "reading, and that it measures this motor only."),
-    -2: ("The load methods disagree beyond their bands. Re-check the speed (tachometer on the motor shaft, "
-         "not a belt pulley), the clamp around one phase conductor only, and the nameplate's rated speed "
-         "and current (a wrong nameplate entry shifts every method differently)."),
-}
-
-
-def finding_text(code: str, th: Thresholds, outlier: int = -2, on_drive: bool = False,
-                 at_synchronous: bool = False) -> tuple[str, str]:
-    """Plain-language finding and its caution for one flag."""
-    basis = "torque" if on_drive else "load"
-    above = ("Shaft speed equals synchronous speed within the tachometer's resolution: the motor runs "
-             "uncoupled or unloaded, so slip is too small to measure. No load estimate is given."
-             if at_synchronous else
-             "Shaft speed is above synchronous speed: the motor is generating (driven by its load) or the "
-             "tachometer was misread. No load estimate is given.")
-    under = (f"Torque projected to rated speed by the fan/pump law is below {th.underloaded_pct:g} % of rated "
-             "torque: the motor is oversized for this duty even at full speed." if on_drive else
-             f"Estimated load is below {th.underloaded_pct:g} % of rated: the motor is oversized for this "
-             "duty; efficiency and power factor are poor.")
-    texts = {
-        "speed_above_synchronous": (above, CAUTION_MEASURE),
-        "overloaded": (
-            f"Estimated {basis} is above {th.overloaded_pct:g} % of rated: the winding runs hotter than "
-            "its rating; find the cause (process, mechanical drag, wrong impeller or pulley) before "
-            "sign-off.", CAUTION_KEEP_RUNNING),
-        "over_service_factor": (
-            f"Estimated {basis} exceeds the service factor: beyond what the nameplate allows even for "
-            "short periods.", CAUTION_KEEP_RUNNING),
-        "near_breakdown": (
-            f"Breakdown torque is less than {th.near_breakdown_margin:g} times the operating torque (or the "
-            "point is already past breakdown, on the unstable side): a voltage dip or load surge may stall "
-            "the motor.", CAUTION_KEEP_RUNNING),
-        "underloaded": (under + " Check the process was at its normal duty when read.", ""),
-        "supply_out_of_tolerance": (
-            "Supply voltage or frequency is outside the tolerance the motor is rated for (IEC 60034-1 zone A, "
-            "or NEMA MG 1 +-10 % V, +-5 % f, 10 % combined).", CAUTION_ISOLATE),
-        "voltage_unbalance": (
-            f"Voltage unbalance exceeds {th.voltage_unbalance_pct:g} % (NEMA definition): derate the motor by "
-            "the derating factor shown; operation above 5 % is not recommended. Look for a high-resistance "
-            "joint, a blown capacitor stage or unevenly loaded single-phase circuits.", CAUTION_ISOLATE),
-        "current_unbalance": (
-            f"Current unbalance exceeds {th.current_unbalance_pct:g} %: look at the supply unbalance first, "
-            "then for a poor connection or a winding fault.", CAUTION_ISOLATE),
-        "starting_torque_low": (
-            f"Locked-rotor torque at the measured voltage is less than {th.starting_margin:g} times the "
-            "breakaway torque this load needs: the motor may fail to start, or start too slowly, after a stop "
-            "under load or on a weak supply.", CAUTION_KEEP_RUNNING),
-        "readings_inconsistent": (_INCONSISTENT_TEXT.get(outlier, _INCONSISTENT_TEXT[-2]) +
-                                  " Take the readings again.", CAUTION_MEASURE),
-    }
-    return texts[code]
-
-
 def combination_mask(flag_arrays: dict, outlier, on_drive, at_synchronous=None) -> np.ndarray:
     """One integer per row encoding its flags, the disagreeing method and the supply.
 
@@ -182,30 +106,19 @@ def combination_mask(flag_arrays: dict, outlier, on_drive, at_synchronous=None) 
     return mask
 
 
-def describe(combinations, th: Thresholds):
-    """Flag codes and findings for each distinct combination mask.
-
-    Parameters
-    ----------
-    combinations : sequence of int
-        Distinct values of :func:`combination_mask`.
-    th : Thresholds
+def decode_combination(mask: int) -> tuple[tuple[str, ...], int, bool, bool]:
+    """What one value of :func:`combination_mask` holds.
 
     Returns
     -------
-    codes : list of tuple of str
-        Per combination.
-    findings : list of list of dict
-        ``{"flag", "text", "caution"}`` per combination.
+    codes : tuple of str
+        Flag codes set, in :data:`FLAG_ORDER`.
+    outlier : int
+        Method index that disagrees, -1 none, -2 ambiguous.
+    on_drive : bool
+    at_synchronous : bool
     """
-    codes, findings = [], []
-    for m in combinations:
-        m = int(m)
-        row_codes = tuple(code for bit, code in enumerate(FLAG_ORDER) if m >> bit & 1)
-        out = ((m >> len(FLAG_ORDER)) & 0b111) - 2
-        drive = bool(m >> (len(FLAG_ORDER) + 3) & 1)
-        at_sync = bool(m >> (len(FLAG_ORDER) + 4) & 1)
-        codes.append(row_codes)
-        findings.append([dict(zip(("flag", "text", "caution"), (c,) + finding_text(c, th, out, drive, at_sync)))
-                         for c in row_codes])
-    return codes, findings
+    m = int(mask)
+    codes = tuple(code for bit, code in enumerate(FLAG_ORDER) if m >> bit & 1)
+    outlier = ((m >> len(FLAG_ORDER)) & 0b111) - 2
+    return codes, outlier, bool(m >> (len(FLAG_ORDER) + 3) & 1), bool(m >> (len(FLAG_ORDER) + 4) & 1)

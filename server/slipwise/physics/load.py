@@ -70,6 +70,46 @@ def rotor_resistance_ratio(load_pu, minutes_running):
     return (ALUMINIUM_K_DEGC + temp) / (ALUMINIUM_K_DEGC + AMBIENT_DEGC + ROTOR_RISE_RATED_K)
 
 
+def slip_torque_pu(slip_rpm, rated_slip_rpm, flux_ratio):
+    """Shaft torque over rated torque from slip speed and flux [pu].
+
+    Parameters
+    ----------
+    slip_rpm : numeric
+        Measured slip speed, synchronous speed *at the measured frequency*
+        minus shaft speed [rpm].
+    rated_slip_rpm : numeric
+        Nameplate slip speed, rated synchronous minus rated speed [rpm].
+    flux_ratio : numeric
+        Air-gap flux relative to rated, ``(V/f) / (V_r/f_r)`` [-].
+
+    Returns
+    -------
+    numeric
+        ``T / T_r = (n_slip / n_slip,r) * flux_ratio^2``.
+
+    Notes
+    -----
+    In the linear part of the torque-slip curve the rotor current is
+    proportional to the air-gap flux times the rotor frequency (slip speed)
+    and the torque to flux times rotor current, so
+    ``T ~ (V/f)^2 * n_slip`` [1]_ on mains and on a drive alike. On mains at
+    rated frequency this is the DOE sheet's ``(s / s_r) (V / V_r)^2``; off
+    rated frequency it accounts for the frequency as well (at +2 % f and rated
+    voltage a rated-torque point slips 1.02^2 times the rated slip speed).
+    Stator resistance and leakage make the law approximate (about 1 % within
+    +-5 % V and f, checked against the circuit in the tests).
+
+    Examples
+    --------
+    >>> round(float(slip_torque_pu(40.0 * 1.02 ** 2, 40.0, 1.0 / 1.02)), 6)
+    1.0
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return (np.asarray(slip_rpm, dtype=float) / np.asarray(rated_slip_rpm, dtype=float)
+                * np.asarray(flux_ratio, dtype=float) ** 2)
+
+
 def slip_method(slip_rpm, rated_slip_rpm, flux_ratio, speed_ratio, rated_power_kw,
                 tachometer_resolution_rpm, voltage_accuracy_pct, minutes_running, on_drive):
     """Load by the slip method with flux (voltage) compensation.
@@ -77,12 +117,13 @@ def slip_method(slip_rpm, rated_slip_rpm, flux_ratio, speed_ratio, rated_power_k
     Parameters
     ----------
     slip_rpm : numeric
-        Measured slip speed, synchronous minus shaft speed [rpm].
+        Measured slip speed, synchronous speed at the measured frequency minus
+        shaft speed [rpm], on mains and on a drive alike.
     rated_slip_rpm : numeric
         Nameplate slip speed at rated frequency [rpm].
     flux_ratio : numeric
-        Air-gap flux relative to rated, ``(V/f) / (V_r/f_r)`` [-]; on mains
-        at rated frequency this is ``V / V_r``.
+        Air-gap flux relative to rated, ``(V/f) / (V_r/f_r)`` [-], on mains
+        and on a drive alike (see :func:`slip_torque_pu`).
     speed_ratio : numeric
         Shaft speed over rated speed [-].
     rated_power_kw : numeric
@@ -105,11 +146,13 @@ def slip_method(slip_rpm, rated_slip_rpm, flux_ratio, speed_ratio, rated_power_k
 
     Notes
     -----
-    In the linear part of the torque-speed curve torque is proportional to
-    rotor frequency times flux squared, so the rated slip seen at the
-    present flux is ``s_r (V_r / V)^2`` on mains [1]_ and, on a drive, the rated
-    slip speed scaled by ``((V_r/f_r) / (V/f))^2``. Load torque is then
-    ``s / s_r'``, the published method unchanged.
+    Torque from :func:`slip_torque_pu`: in the linear part of the
+    torque-speed curve torque is proportional to rotor frequency (slip speed)
+    times flux squared, one law for mains and drive; on mains at rated
+    frequency it is the published ``(s / s_r) (V / V_r)^2`` [1]_. A caller
+    that passes ``s * n_s,r`` and ``V / V_r`` on mains gets the published
+    method, which ignores a frequency deviation (it reads about 2 % high at
+    +2 % f).
 
     The band combines in quadrature (log space) the nameplate slip tolerance
     [2]_, the tachometer resolution and the voltmeter accuracy (doubled: flux
@@ -121,9 +164,8 @@ def slip_method(slip_rpm, rated_slip_rpm, flux_ratio, speed_ratio, rated_power_k
     """
     slip_rpm = np.asarray(slip_rpm, dtype=float)
     rated_slip_rpm = np.asarray(rated_slip_rpm, dtype=float)
-    flux2 = np.asarray(flux_ratio, dtype=float) ** 2
+    torque = slip_torque_pu(slip_rpm, rated_slip_rpm, flux_ratio)
     with np.errstate(divide="ignore", invalid="ignore"):
-        torque = slip_rpm / rated_slip_rpm * flux2
         tol = np.where(np.asarray(rated_power_kw, dtype=float) < 1.0, SLIP_TOLERANCE_BELOW_1KW, SLIP_TOLERANCE)
         tach = np.asarray(tachometer_resolution_rpm, dtype=float) / np.maximum(np.abs(slip_rpm), 1e-9)
         volt = 2.0 * np.asarray(voltage_accuracy_pct, dtype=float) / 100.0
@@ -145,7 +187,8 @@ def slip_method(slip_rpm, rated_slip_rpm, flux_ratio, speed_ratio, rated_power_k
 
 
 def current_method(current_a, rated_current_a, no_load_current_a, rated_no_load_current_a,
-                   flux_ratio, speed_ratio, current_accuracy_pct):
+                   flux_ratio, speed_ratio, current_accuracy_pct, no_load_current_low_a=None,
+                   no_load_current_high_a=None):
     """Load by the current method, with the magnetising current removed.
 
     Parameters
@@ -165,6 +208,11 @@ def current_method(current_a, rated_current_a, no_load_current_a, rated_no_load_
         Shaft speed over rated speed [-].
     current_accuracy_pct : numeric
         Clamp meter accuracy [% of reading].
+    no_load_current_low_a, no_load_current_high_a : numeric, optional
+        Band of the no-load current at the present flux [A], e.g. from
+        :func:`slipwise.physics.typical.saturated_no_load_current`; the band
+        then spans it as well as the circuit's own 20 % uncertainty. Omitted:
+        ``no_load_current_a`` itself.
 
     Returns
     -------
@@ -187,16 +235,19 @@ def current_method(current_a, rated_current_a, no_load_current_a, rated_no_load_
     factor = np.asarray(flux_ratio, dtype=float) * np.asarray(speed_ratio, dtype=float)
     acc = np.asarray(current_accuracy_pct, dtype=float) / 100.0
 
-    def load(i_meas, i0_scale):
+    i0_low = i0 if no_load_current_low_a is None else np.asarray(no_load_current_low_a, dtype=float)
+    i0_high = i0 if no_load_current_high_a is None else np.asarray(no_load_current_high_a, dtype=float)
+
+    def load(i_meas, i0_now, i0_scale):
         with np.errstate(invalid="ignore", divide="ignore"):
-            num = np.sqrt(np.maximum(i_meas ** 2 - (i0 * i0_scale) ** 2, 0.0))
+            num = np.sqrt(np.maximum(i_meas ** 2 - (i0_now * i0_scale) ** 2, 0.0))
             den = np.sqrt(np.maximum(i_r ** 2 - (i0r * i0_scale) ** 2, 1e-12))
             return num / den * factor
 
-    value = load(i, 1.0)
+    value = load(i, i0, 1.0)
     # low: meter reads high and the magnetising current is larger than modelled
-    low = np.minimum(load(i * (1 - acc), 1 + NO_LOAD_CURRENT_TOLERANCE), load(i * (1 - acc), 1.0))
-    high = np.maximum(load(i * (1 + acc), 1 - NO_LOAD_CURRENT_TOLERANCE), load(i * (1 + acc), 1.0))
+    low = np.minimum(load(i * (1 - acc), i0_high, 1 + NO_LOAD_CURRENT_TOLERANCE), load(i * (1 - acc), i0_high, 1.0))
+    high = np.maximum(load(i * (1 + acc), i0_low, 1 - NO_LOAD_CURRENT_TOLERANCE), load(i * (1 + acc), i0_low, 1.0))
     # model error in quadrature with the half-widths above
     low = value - np.sqrt((value - low) ** 2 + CURRENT_MODEL_ERROR_PU ** 2)
     high = value + np.sqrt((high - value) ** 2 + CURRENT_MODEL_ERROR_PU ** 2)
@@ -210,6 +261,23 @@ def input_power_w(voltage_v, current_a, power_factor):
     """
     return np.sqrt(3.0) * np.asarray(voltage_v, dtype=float) * np.asarray(current_a, dtype=float) * \
         np.asarray(power_factor, dtype=float)
+
+
+def input_power_accuracy_pct(voltage_accuracy_pct, current_accuracy_pct, power_factor):
+    """Accuracy of an input power computed from V, I and pf readings [%].
+
+    Root-sum-square of the relative errors of the three readings, the power
+    factor's taken as :data:`POWER_FACTOR_ACCURACY` absolute (GUM, uncorrelated
+    inputs to a product).
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return 100.0 * np.sqrt((voltage_accuracy_pct / 100) ** 2 + (current_accuracy_pct / 100) ** 2
+                               + (POWER_FACTOR_ACCURACY / power_factor) ** 2)
+
+
+def magnetising_current_a(rated_no_load_current_a, flux_ratio):
+    """No-load (magnetising) current at a flux [A]: proportional to flux, saturation neglected (in the band)."""
+    return rated_no_load_current_a * flux_ratio
 
 
 def input_power_method(input_w, input_accuracy_pct, core_loss_w, friction_windage_w, stator_loss_w,
@@ -262,6 +330,12 @@ def input_power_method(input_w, input_accuracy_pct, core_loss_w, friction_windag
     low = out(p_in * (1 - acc), fixed_loss_band[1], stator_loss_band[1])
     high = out(p_in * (1 + acc), fixed_loss_band[0], stator_loss_band[0])
     return Estimate(*(np.clip(a, 0.0, None) for a in (value, low, high)))
+
+
+def widen(estimate: Estimate, factor) -> Estimate:
+    """The same estimate with its band scaled by ``factor`` about the central value [pu]."""
+    e = estimate
+    return Estimate(e.value, e.value - (e.value - e.low) * factor, e.value + (e.high - e.value) * factor)
 
 
 def fuse(estimates):

@@ -135,6 +135,28 @@ def deviation_pct(measured, rated):
         return 100.0 * (measured - rated) / rated
 
 
+#: Label per supply zone code: 0 unknown, 1-3 from :func:`iec_zone_code`, and
+#: :data:`DRIVE_ZONE_CODE` for a motor on a drive (no mains tolerance applies).
+ZONE_LABELS = ("", "A", "B", "outside", "drive")
+DRIVE_ZONE_CODE = 4
+
+
+def drive_voltage_v(rated_voltage_v, frequency_hz, rated_frequency_hz):
+    """Voltage a V/f drive applies at an output frequency [V].
+
+    Constant V/f up to rated frequency, rated voltage above it (field
+    weakening): ``V = V_r min(f/f_r, 1)``.
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return rated_voltage_v * np.minimum(np.asarray(frequency_hz, dtype=float) / rated_frequency_hz, 1.0)
+
+
+def flux_ratio(voltage_v, frequency_hz, rated_voltage_v, rated_frequency_hz):
+    """Air-gap flux over rated flux, ``(V/f) / (V_r/f_r)`` [-] (stator drop neglected)."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return (np.asarray(voltage_v, dtype=float) / frequency_hz) / (rated_voltage_v / rated_frequency_hz)
+
+
 def iec_zone(voltage_deviation_pct, frequency_deviation_pct):
     """IEC 60034-1 voltage/frequency zone of operation for a motor.
 
@@ -157,7 +179,7 @@ def iec_zone(voltage_deviation_pct, frequency_deviation_pct):
     ``-5 <= df <= +3``, ``|dV| <= 10`` and ``|dV - df| <= 10``. The cut
     corners are where flux (V/f) is far from rated.
     """
-    return np.array(["", "A", "B", "outside"])[iec_zone_code(voltage_deviation_pct, frequency_deviation_pct)]
+    return np.array(ZONE_LABELS[:4])[iec_zone_code(voltage_deviation_pct, frequency_deviation_pct)]
 
 
 def iec_zone_code(voltage_deviation_pct, frequency_deviation_pct):

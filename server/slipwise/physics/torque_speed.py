@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from .units import RPM_TO_RAD_S
+
 #: Driven-load torque laws and how load torque varies with speed ``n``:
 #: ``variable_torque`` T ~ n^2 (fans, centrifugal pumps); ``constant_torque``
 #: (conveyors, positive-displacement pumps, compressors); ``constant_power``
@@ -59,6 +61,147 @@ def kloss_torque(slip, breakdown_slip, breakdown_torque):
         return np.where(s == 0, 0.0, 2.0 * tk / (s / sk + sk / s))
 
 
+def kloss_slope_nm_per_rpm(slip, breakdown_slip, breakdown_torque_nm, sync_speed_rpm):
+    """Slope of the motor's torque-speed curve by the Kloss form [N·m/rpm].
+
+    Parameters
+    ----------
+    slip : numeric
+        Operating slip [pu] (positive).
+    breakdown_slip : numeric
+        Slip at breakdown torque [pu].
+    breakdown_torque_nm : numeric
+        Breakdown torque [N·m].
+    sync_speed_rpm : numeric
+        Synchronous speed [rpm].
+
+    Returns
+    -------
+    numeric
+        ``dT/dn`` at the operating point [N·m/rpm]; negative on the stable side.
+
+    Notes
+    -----
+    Derivative of the Kloss formula (:func:`kloss_torque`) with
+    respect to slip, ``dT/ds = 2 T_k (s_k/s^2 - 1/s_k) / (s/s_k + s_k/s)^2``,
+    and ``dn = -n_s ds``. The Kloss form neglects stator resistance; it is
+    used through the fitted circuit's breakdown point, a documented
+    simplification for the sign of the slope (stability), not for figures.
+
+    References
+    ----------
+    .. [1] M. Kloss, the classical two-parameter torque-slip formula, as given
+       in standard electric-machinery texts.
+
+    Examples
+    --------
+    >>> abs(float(kloss_slope_nm_per_rpm(0.2, 0.2, 250.0, 1500.0))) < 1e-12   # zero at breakdown
+    True
+    """
+    s = np.asarray(slip, dtype=float)
+    sk = np.asarray(breakdown_slip, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x = s / sk + sk / s
+        dt_ds = 2.0 * np.asarray(breakdown_torque_nm, dtype=float) * (sk / s ** 2 - 1.0 / sk) / x ** 2
+        return -dt_ds / np.asarray(sync_speed_rpm, dtype=float)
+
+
+def torque_nm(power_w, speed_rpm):
+    """Torque from power and speed, ``T = P / omega`` [N·m].
+
+    Parameters
+    ----------
+    power_w : numeric
+        Mechanical power [W].
+    speed_rpm : numeric
+        Shaft speed [rpm]; floored at 1e-9 rad/s so standstill gives a finite value.
+
+    Returns
+    -------
+    numeric
+        Torque [N·m].
+
+    Examples
+    --------
+    >>> round(float(torque_nm(11000.0, 1460.0)), 2)   # 11 kW at 1460 rpm
+    71.95
+    """
+    omega = np.asarray(speed_rpm, dtype=float) * RPM_TO_RAD_S
+    return np.asarray(power_w, dtype=float) / np.maximum(omega, 1e-9)
+
+
+def torque_from_load(load, speed_ratio):
+    """Shaft torque over rated torque from shaft output over rated output [pu or %, as ``load``].
+
+    ``T/T_r = (P/P_r) / (n/n_r)``: torque is power over speed.
+
+    Parameters
+    ----------
+    load : numeric
+        Shaft output over rated output [pu or %].
+    speed_ratio : numeric
+        Shaft speed over rated speed [-].
+
+    Examples
+    --------
+    >>> float(torque_from_load(0.5, 0.5))   # half the output at half the speed: rated torque
+    1.0
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.asarray(load, dtype=float) / np.asarray(speed_ratio, dtype=float)
+
+
+def shaft_breakdown_torque_pct(breakdown_torque_em_nm, friction_windage_nm, rated_torque_nm):
+    """Breakdown torque available at the shaft [% of rated torque].
+
+    The electromagnetic breakdown torque less the friction and windage torque
+    at the operating speed, over rated torque.
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return 100.0 * (np.asarray(breakdown_torque_em_nm, dtype=float) - friction_windage_nm) / rated_torque_nm
+
+
+def starting_margin(locked_rotor_torque_pct, voltage_v, rated_voltage_v, breakaway_share, operating_torque_pct):
+    """Locked-rotor torque at the measured voltage over the breakaway torque the load needs [-].
+
+    Parameters
+    ----------
+    locked_rotor_torque_pct : numeric
+        Locked-rotor torque at rated voltage [% of rated torque].
+    voltage_v, rated_voltage_v : numeric
+        Supply voltage and rated voltage [V].
+    breakaway_share : numeric
+        Breakaway torque of the driven load over its running torque [-].
+    operating_torque_pct : numeric
+        Running torque of the load [% of rated], floored at 10 % (an
+        unloaded reading still has to start its machine).
+
+    Notes
+    -----
+    Locked-rotor torque scales with the square of the voltage (the current
+    at standstill is set by the leakage impedance), IEC 60034-12 and
+    NEMA MG 1 give it at rated voltage.
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        lrt_now = locked_rotor_torque_pct * (voltage_v / rated_voltage_v) ** 2
+        need = breakaway_share * np.maximum(operating_torque_pct, 10.0)
+        return lrt_now / need
+
+
+def variable_torque(speed_rpm, operating_speed_rpm, operating_torque):
+    """Torque of a fan or centrifugal pump at a speed, ``T = T_0 (n/n_0)^2`` (affinity laws).
+
+    Parameters
+    ----------
+    speed_rpm : numeric
+        Speed to evaluate [rpm].
+    operating_speed_rpm, operating_torque : numeric
+        A point on the law [rpm], [any torque unit; the result has the same unit].
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return operating_torque * (np.asarray(speed_rpm, dtype=float) / operating_speed_rpm) ** 2
+
+
 def load_torque(speed_rpm, law, operating_speed_rpm, operating_torque, sync_speed_rpm,
                 breakaway_torque=np.nan):
     """Torque the driven machine demands at a speed, through the operating point.
@@ -88,7 +231,7 @@ def load_torque(speed_rpm, law, operating_speed_rpm, operating_torque, sync_spee
     t0 = np.asarray(operating_torque, dtype=float)
     ns = np.asarray(sync_speed_rpm, dtype=float)
     with np.errstate(divide="ignore", invalid="ignore"):
-        variable = t0 * (n / n0) ** 2
+        variable = variable_torque(n, n0, t0)
         constant = t0 * np.ones_like(n)
         power = np.minimum(t0 * n0 / np.maximum(n, 1e-9), 3.0 * t0)
         ramp = np.clip(1.0 - n / (BREAKAWAY_SPEED_PU * ns), 0.0, 1.0)
@@ -98,7 +241,22 @@ def load_torque(speed_rpm, law, operating_speed_rpm, operating_torque, sync_spee
 
 
 def load_torque_slope(law, operating_speed_rpm, operating_torque):
-    """d(load torque)/d(speed) at the operating point [torque unit per rpm]."""
+    """Slope of the driven load's torque-speed law at the operating point.
+
+    Parameters
+    ----------
+    law : str or array of str
+        One of :data:`LOAD_LAWS`.
+    operating_speed_rpm, operating_torque : numeric
+        The operating point [rpm], [any torque unit].
+
+    Returns
+    -------
+    numeric
+        ``dT/dn`` [torque unit per rpm]: ``2 T_0 / n_0`` for variable torque
+        (``T ~ n^2``), ``-T_0 / n_0`` for constant power (``T ~ 1/n``), 0 for
+        constant-torque and high-breakaway loads above breakaway speed.
+    """
     law = np.asarray(law)
     n0 = np.asarray(operating_speed_rpm, dtype=float)
     t0 = np.asarray(operating_torque, dtype=float)
@@ -135,3 +293,44 @@ def breakdown_margin(breakdown_torque, operating_torque):
     ot = np.asarray(operating_torque, dtype=float)
     with np.errstate(divide="ignore", invalid="ignore"):
         return np.where(ot > 0, bt / ot, np.nan)
+
+
+def breakdown_margin_band(breakdown_now_pct, breakdown_rated_pct, breakdown_low_rated_pct,
+                          operating_torque_pct, operating_torque_high_pct):
+    """Breakdown margin, central and pessimistic-low [-].
+
+    Parameters
+    ----------
+    breakdown_now_pct : numeric
+        Breakdown torque at the present voltage and frequency, from the
+        circuit fitted to ``breakdown_rated_pct`` [% of rated torque].
+    breakdown_rated_pct : numeric
+        The breakdown torque at rated voltage the circuit was fitted to
+        (nameplate or :func:`typical.typical_breakdown_torque_pct`) [%].
+    breakdown_low_rated_pct : numeric
+        Lowest credible breakdown torque at rated voltage
+        (:func:`typical.breakdown_torque_low_pct`) [%].
+    operating_torque_pct, operating_torque_high_pct : numeric
+        Operating torque, central and high end of its band [% of rated
+        torque]; floored at 1 %.
+
+    Returns
+    -------
+    tuple of numeric
+        ``(central, low)``: ``T_b,now / T_op`` and
+        ``T_b,now * (T_b,low / T_b,rated) / T_op,high`` (the present voltage's
+        effect taken from the circuit, the rated-voltage value at its lowest,
+        the load at its highest). NaN where an input is missing.
+
+    Examples
+    --------
+    >>> [round(float(x), 3) for x in breakdown_margin_band(240.0, 240.0, 160.0, 100.0, 110.0)]
+    [2.4, 1.455]
+    """
+    now = np.asarray(breakdown_now_pct, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        scale = np.asarray(breakdown_low_rated_pct, dtype=float) / np.asarray(breakdown_rated_pct, dtype=float)
+        central = breakdown_margin(now, np.maximum(np.asarray(operating_torque_pct, dtype=float), 1.0))
+        low = breakdown_margin(now * np.fmin(scale, 1.0),
+                               np.maximum(np.asarray(operating_torque_high_pct, dtype=float), 1.0))
+    return central, low

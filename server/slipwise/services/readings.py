@@ -73,13 +73,17 @@ def export_rows(db: Database, **filters) -> Iterator[RowMapping]:
 
 
 def picture_record(db: Database, reading_id: int) -> tuple[dict, dict]:
-    """(engine record, {tag, taken_at, engine_version}) for the torque-speed picture of a stored reading."""
+    """(engine record, {tag, taken_at, engine_version, result}) for the torque-speed picture of a stored reading.
+
+    ``result`` is the stored result: the picture draws its points, not a new interpretation's.
+    """
     with db.read() as conn:
         row = store.nameplate_row(conn, reading_id)
     if row is None:
         raise NotFoundError(f"no reading with id {reading_id}", "id")
     record = engine_record(row, row["tag"], json.loads(row["inputs"]), row["taken_at"])
-    return record, {"tag": row["tag"], "taken_at": row["taken_at"], "engine_version": row["engine_version"]}
+    return record, {"tag": row["tag"], "taken_at": row["taken_at"], "engine_version": row["engine_version"],
+                    "result": json.loads(row["result"])}
 
 
 def interpret_reading(db: Database, inputs: Mapping[str, Any], taken_at: str | None, *,

@@ -1,7 +1,7 @@
-"""The store: SQLAlchemy Core on SQLite (default) or PostgreSQL, with numbered migrations.
+"""The store: SQLAlchemy Core on SQLite (default) or PostgreSQL, with Alembic migrations.
 
 Modules: ``database`` (connections; the only dialect-aware code), ``schema``
-(tables), ``migrations`` (numbered steps), ``accounts``, ``motors``,
+(tables), ``migrations`` (Alembic, run from code; scripts in ``alembic/``), ``accounts``, ``motors``,
 ``readings``, ``audit`` (the data operations), ``validation`` (request values
 to contract types).
 """

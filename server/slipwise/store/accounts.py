@@ -12,6 +12,7 @@ from typing import Any
 
 from sqlalchemy import Connection, delete, select, update
 from sqlalchemy.exc import IntegrityError
+from werkzeug.security import check_password_hash, generate_password_hash
 
 from . import audit
 from .errors import ConflictError, NotFoundError, ValidationError
@@ -20,6 +21,8 @@ from .types import utcnow
 
 # scrypt with N=2**15, r=8, p=1 takes 32 MiB and ~80 ms per hash on this kind of machine
 # (RFC 7914; the parameters OWASP's password storage cheat sheet lists as a minimum for scrypt).
+# Hashes are werkzeug's ("scrypt:N:r:p$salt$hex"); release 2 wrote its own format
+# ("scrypt$N$r$p$b64salt$b64key"), which still verifies (see verify_password).
 SCRYPT_N = 2 ** 15
 SCRYPT_R = 8
 SCRYPT_P = 1
@@ -32,15 +35,25 @@ USERNAME_RE = re.compile(r"^[a-z0-9][a-z0-9._-]{0,63}$")
 MAX_LOCK_SECONDS = 300
 
 
-def _b64(b: bytes) -> str:
-    return base64.b64encode(b).decode("ascii")
-
-
 def hash_password(password: str, n: int = SCRYPT_N) -> str:
-    salt = secrets.token_bytes(16)
-    key = hashlib.scrypt(password.encode("utf-8"), salt=salt, n=n, r=SCRYPT_R, p=SCRYPT_P,
-                         maxmem=256 * 1024 * 1024, dklen=32)
-    return f"scrypt${n}${SCRYPT_R}${SCRYPT_P}${_b64(salt)}${_b64(key)}"
+    """werkzeug's scrypt hash of ``password`` (cost ``n``; 16 random bytes of salt)."""
+    return generate_password_hash(password, method=f"scrypt:{int(n)}:{SCRYPT_R}:{SCRYPT_P}", salt_length=16)
+
+
+def is_release_2_hash(stored: str) -> bool:
+    return stored.startswith("scrypt$") and stored.count("$") == 5
+
+
+def _verify_release_2(password: str, stored: str) -> bool:
+    """Release 2's own format: scrypt$N$r$p$base64(salt)$base64(key)."""
+    try:
+        _, n, r, p, salt, key = stored.split("$")
+        want = base64.b64decode(key)
+        got = hashlib.scrypt(password.encode("utf-8"), salt=base64.b64decode(salt), n=int(n), r=int(r),
+                             p=int(p), maxmem=256 * 1024 * 1024, dklen=len(want))
+    except (ValueError, TypeError):
+        return False
+    return hmac.compare_digest(got, want)
 
 
 def verify_password(password: str, stored: str | None) -> bool:
@@ -48,15 +61,12 @@ def verify_password(password: str, stored: str | None) -> bool:
         # spend the same time as a real check, so a missing user is not told apart by timing
         hash_password(password)
         return False
+    if is_release_2_hash(stored):
+        return _verify_release_2(password, stored)
     try:
-        kind, n, r, p, salt, key = stored.split("$")
-        if kind != "scrypt":
-            return False
-        got = hashlib.scrypt(password.encode("utf-8"), salt=base64.b64decode(salt), n=int(n), r=int(r),
-                             p=int(p), maxmem=256 * 1024 * 1024, dklen=len(base64.b64decode(key)))
+        return check_password_hash(stored, password)
     except (ValueError, TypeError):
         return False
-    return hmac.compare_digest(got, base64.b64decode(key))
 
 
 def token_hash(token: str) -> str:
@@ -103,14 +113,6 @@ def add_user(conn: Connection, username: str, role: str, password: str | None, f
     audit.record(conn, actor, "user.add", "user", new_id, {"username": username, "role": role})
     return get_user(conn, new_id)
 
-
-def set_password(conn: Connection, username: str, password: str, actor: dict | None = None,
-                 scrypt_n: int = SCRYPT_N) -> None:
-    check_password(password)
-    user = get_user_by_name(conn, username)
-    conn.execute(update(users).where(users.c.id == user["id"]).values(password_hash=hash_password(password, scrypt_n)))
-    conn.execute(delete(sessions).where(sessions.c.user_id == user["id"]))
-    audit.record(conn, actor, "user.password", "user", user["id"], {"username": username})
 
 
 def get_user(conn: Connection, user_id: int) -> dict:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import fcntl
 import os
 import re
+import sqlite3
 import stat
 import threading
 from contextlib import contextmanager
@@ -16,7 +17,8 @@ from sqlalchemy.engine import make_url
 from sqlalchemy.exc import OperationalError
 
 from . import migrations
-from .errors import SchemaError, SchemaTooNewError, UnavailableError
+from .errors import SchemaError, UnavailableError
+from .types import utcnow
 
 _SCHEMA_NAME = re.compile(r"^[a-z_][a-z0-9_]{0,62}$")
 
@@ -144,9 +146,12 @@ class Database:
                 fcntl.flock(self._lock_fd, fcntl.LOCK_UN)
 
     # --- schema ------------------------------------------------------------
-    def version(self) -> int:
+    def status(self) -> migrations.Status:
         with self.read() as conn:
-            return migrations.current_version(conn)
+            return migrations.status(conn)
+
+    def version(self) -> int:
+        return self.status().current
 
     def stored_version(self) -> int:
         """The schema version row alone (one cheap query, for health checks)."""
@@ -154,21 +159,98 @@ class Database:
             return int(conn.exec_driver_sql("SELECT version FROM schema_version").scalar_one())
 
     def upgrade(self, target: int = migrations.HEAD) -> tuple[int, int]:
-        # a database already at the target needs no write: a read-only one still serves reads
-        current = self.version()
-        if target <= current <= migrations.HEAD:
-            return current, current
-        with self.write() as conn:
-            return migrations.upgrade(conn, target)
+        done = self.migrate(target)
+        return done.before, done.after
+
+    def migrate(self, target: int = migrations.HEAD, backup: bool = True) -> migrations.Upgrade:
+        """Bring the schema to ``target``; see ``migrations.upgrade``.
+
+        A database already there needs no write (a read-only one still serves reads). Before an SQLite
+        file with records in it is changed, a copy of it is saved beside it (``backup=False`` skips that).
+        """
+        st = self.status()
+        migrations.check_not_newer(st)
+        if migrations.is_current(st, target):
+            return migrations.Upgrade(st.current, st.current)
+        saved: list[str] = []
+
+        def copy_first(version: int) -> None:
+            # under the migration lock: one process copies, the others find the schema current
+            if backup and self._sqlite_path:
+                stamp = utcnow().strftime("%Y%m%dT%H%M%SZ")
+                saved.append(str(self.backup(f"{self._sqlite_path}.schema-{version}-{stamp}.bak")))
+
+        with self.migration() as conn:
+            done = migrations.upgrade(conn, target, schema=self.schema, before_change=copy_first)
+        done.backup = saved[0] if saved else None
+        return done
+
+    @contextmanager
+    def migration(self) -> Iterator[Connection]:
+        """A write transaction for migrations; on SQLite with foreign-key enforcement off.
+
+        SQLite alters most things by copying a table, dropping the old one and renaming the copy; with
+        enforcement on, the drop deletes the rows other tables refer to and the commit fails (deferring
+        the checks does not help: the rename does not undo the counted violations). SQLite's own recipe
+        (ALTER TABLE, "making other kinds of table schema changes") turns enforcement off outside the
+        transaction and runs ``PRAGMA foreign_key_check`` before the commit, which env.py does.
+        """
+        if self.dialect != "sqlite":
+            with self.write() as conn:
+                yield conn
+            return
+        with self._sqlite_writer():
+            with self.engine.connect() as conn:
+                raw = conn.connection.dbapi_connection  # no transaction is open yet: the pragma applies
+                raw.execute("PRAGMA foreign_keys=OFF")
+                try:
+                    with conn.execution_options(slipwise_write=True).begin():
+                        yield conn
+                finally:
+                    raw.execute("PRAGMA foreign_keys=ON")
 
     def check_current(self) -> None:
         """Raise unless the schema is exactly the one this code was written for."""
-        v = self.version()
-        if v > migrations.HEAD:
-            raise SchemaTooNewError(f"the database is at schema version {v}, newer than this slipwise "
-                                    f"(version {migrations.HEAD})")
-        if v < migrations.HEAD:
-            raise SchemaError(f"the database is at schema version {v}; run slipwise serve to upgrade it")
+        st = self.status()
+        migrations.check_not_newer(st)
+        if not migrations.is_current(st, migrations.HEAD):
+            raise SchemaError(f"the database is at schema version {st.current} and must be upgraded to "
+                              f"{migrations.HEAD}: run `slipwise db upgrade`")
+
+    # --- backup (SQLite) ---------------------------------------------------
+    def backup(self, destination: str | Path) -> Path:
+        """Copy the SQLite database to ``destination`` with SQLite's online backup API.
+
+        The copy is one consistent snapshot (it holds a read transaction for the whole copy), taken
+        while servers go on writing; it is written beside the destination and renamed into place, and
+        set to a rollback journal so it is one self-contained file. An existing file is never
+        overwritten. PostgreSQL has its own tools (pg_dump, pg_basebackup): ValueError here.
+        """
+        if self.dialect != "sqlite":
+            raise ValueError("slipwise db backup copies an SQLite database; for PostgreSQL use pg_dump "
+                             "(e.g. pg_dump -Fc -f slipwise.dump) or pg_basebackup")
+        if self._sqlite_path is None or not Path(self._sqlite_path).is_file():
+            raise ValueError(f"no SQLite database file at {self._sqlite_path or ':memory:'}")
+        dest = Path(destination).resolve()
+        if dest.exists():
+            raise FileExistsError(f"{dest} exists; give a new file name (a backup never overwrites a file)")
+        if dest == Path(self._sqlite_path).resolve():
+            raise ValueError("the backup file must not be the database itself")
+        dest.parent.mkdir(parents=True, exist_ok=True)
+        partial = dest.with_name(dest.name + ".partial")
+        partial.unlink(missing_ok=True)
+        source = sqlite3.connect(self._sqlite_path, timeout=30)
+        try:
+            copy = sqlite3.connect(partial)
+            try:
+                source.backup(copy)  # pages=-1: the whole database in one step, one snapshot
+                copy.execute("PRAGMA journal_mode=DELETE")
+            finally:
+                copy.close()
+        finally:
+            source.close()
+        os.replace(partial, dest)
+        return dest
 
     def describe(self) -> str:
         return make_url(self.url).render_as_string(hide_password=True)

@@ -1,170 +1,145 @@
-"""Numbered schema migration steps with a ``schema_version`` table.
+"""Schema migrations: Alembic revisions in ``store/alembic/versions/``, run from code.
 
-Each step is a function that takes a connection inside the migration's
-transaction and moves the schema from version ``n - 1`` to ``n``. Steps define
-the tables they touch themselves (frozen as they were when the step was
-written) instead of importing ``schema.py``: a later edit of the head schema
-must not change what an old step does.
+Schema versions are integers and revision ``"NNNN"`` is version NNNN; the baseline ``0002`` is the
+schema of release 2. The ``schema_version`` table of release 2 is kept, holding the same integer, so
+that every release (release 2 included, which knows nothing of Alembic) refuses a database written by a
+newer one.
 
-Rules for adding a step: append a function to ``STEPS``; never edit or
-reorder a released step; keep every row (copy, backfill, never drop data).
+What ``upgrade`` finds, and does:
 
-``upgrade`` runs all pending steps in one transaction under a lock (an
-advisory lock on PostgreSQL, ``BEGIN IMMEDIATE`` on SQLite), so two server
-processes starting together migrate once. A database whose version is higher
-than ``HEAD`` was written by a newer slipwise and is refused.
+- an empty database: Alembic runs every revision (the baseline builds release 2's schema);
+- a database of release 1 or 2 (``schema_version``, no ``alembic_version``): release 2's frozen steps
+  (``legacy_steps``) bring it to version 2, it is stamped at revision ``0002``, then upgraded;
+- a database with a known Alembic revision: upgraded to the target;
+- a version above this release's head, or an Alembic revision this release does not know: refused
+  (SchemaTooNewError); slipwise tables with no version at all: refused (SchemaError).
+
+Everything runs in the caller's write transaction after a lock (an advisory lock on PostgreSQL,
+``BEGIN IMMEDIATE`` on SQLite), so two servers starting together migrate once and a failure leaves the
+database as it was. Rules for adding a revision are in DEVELOPERS.md ("Adding a migration").
 """
 
 from __future__ import annotations
 
-import json
+from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
 from typing import Callable
 
-from sqlalchemy import (Boolean, CheckConstraint, Column, Connection, Float, ForeignKey, Index, Integer,
-                        MetaData, String, Table, Text, UniqueConstraint, inspect, select)
+from alembic import command
+from alembic.config import Config
+from alembic.script import ScriptDirectory
+from sqlalchemy import Column, Connection, Integer, MetaData, Table, inspect
 
+from . import legacy_steps
 from .errors import SchemaError, SchemaTooNewError
-from .types import UTCDateTime
 
+SCRIPT_LOCATION = str(Path(__file__).with_name("alembic"))
+BASELINE = legacy_steps.LAST  # release 2's schema, Alembic revision "0002"
 _ADVISORY_LOCK_KEY = 0x51195E  # any constant shared by all slipwise processes
 
 KNOWN_TABLES = ("users", "api_tokens", "sessions", "login_throttle", "sites", "motors",
                 "motor_revisions", "readings", "reviews", "audit_log", "reading_flags")
 
 
-def _step_1_initial(conn: Connection) -> None:
-    """Accounts, sites, motors with revisions, readings, reviews, audit trail."""
-    m = MetaData()
-    Table("users", m,
-          Column("id", Integer, primary_key=True),
-          Column("username", String(64), nullable=False, unique=True),
-          Column("full_name", String(200), nullable=False),
-          Column("role", String(20), nullable=False),
-          Column("password_hash", String(255)),
-          Column("active", Boolean, nullable=False),
-          Column("created_at", UTCDateTime, nullable=False),
-          CheckConstraint("role IN ('technician', 'supervisor')", name="ck_users_role"))
-    Table("api_tokens", m,
-          Column("id", Integer, primary_key=True),
-          Column("user_id", Integer, ForeignKey("users.id"), nullable=False),
-          Column("token_hash", String(64), nullable=False, unique=True),
-          Column("label", String(120), nullable=False),
-          Column("created_at", UTCDateTime, nullable=False))
-    Table("sessions", m,
-          Column("id", Integer, primary_key=True),
-          Column("token_hash", String(64), nullable=False, unique=True),
-          Column("user_id", Integer, ForeignKey("users.id"), nullable=False),
-          Column("created_at", UTCDateTime, nullable=False),
-          Column("expires_at", UTCDateTime, nullable=False))
-    Table("login_throttle", m,
-          Column("key", String(200), primary_key=True),
-          Column("failures", Integer, nullable=False),
-          Column("last_failure_at", UTCDateTime, nullable=False),
-          Column("locked_until", UTCDateTime))
-    Table("sites", m,
-          Column("id", Integer, primary_key=True),
-          Column("name", String(120), nullable=False, unique=True),
-          Column("created_at", UTCDateTime, nullable=False))
-    Table("motors", m,
-          Column("id", Integer, primary_key=True),
-          Column("site_id", Integer, ForeignKey("sites.id"), nullable=False),
-          Column("tag", String(80), nullable=False),
-          Column("created_at", UTCDateTime, nullable=False),
-          Column("created_by", Integer, ForeignKey("users.id")),
-          UniqueConstraint("site_id", "tag", name="uq_motors_site_tag"))
-    floats = ("rated_power_kw", "rated_power_hp", "rated_voltage_v", "rated_current_a", "rated_frequency_hz",
-              "rated_speed_rpm")
-    floats_after_poles = ("rated_power_factor", "rated_efficiency_pct", "service_factor",
-                          "breakdown_torque_pct", "locked_rotor_torque_pct")
-    Table("motor_revisions", m,
-          Column("id", Integer, primary_key=True),
-          Column("motor_id", Integer, ForeignKey("motors.id"), nullable=False),
-          Column("revision", Integer, nullable=False),
-          *[Column(n, Float) for n in floats],
-          Column("poles", Integer),
-          *[Column(n, Float) for n in floats_after_poles],
-          *[Column(n, String(40)) for n in ("design", "supply", "driven_load")],
-          Column("location", String(200), nullable=False),
-          Column("description", Text, nullable=False),
-          Column("created_at", UTCDateTime, nullable=False),
-          Column("created_by", Integer, ForeignKey("users.id")),
-          UniqueConstraint("motor_id", "revision", name="uq_motor_revisions_motor_revision"))
-    Table("readings", m,
-          Column("id", Integer, primary_key=True),
-          Column("client_id", String(36), nullable=False, unique=True),
-          Column("motor_id", Integer, ForeignKey("motors.id"), nullable=False),
-          Column("motor_revision_id", Integer, ForeignKey("motor_revisions.id"), nullable=False),
-          Column("technician_id", Integer, ForeignKey("users.id"), nullable=False),
-          Column("inputs", Text, nullable=False),
-          Column("result", Text, nullable=False),
-          Column("engine_version", String(20), nullable=False),
-          Column("content_hash", String(64), nullable=False),
-          Column("taken_at", String(40), nullable=False),
-          Column("taken_date", String(10), nullable=False),
-          Column("taken_at_utc", UTCDateTime, nullable=False),
-          Column("received_at", UTCDateTime, nullable=False),
-          Column("supersedes_id", Integer, ForeignKey("readings.id"), unique=True),
-          Index("ix_readings_taken_date", "taken_date"),
-          Index("ix_readings_motor_id", "motor_id"))
-    Table("reviews", m,
-          Column("id", Integer, primary_key=True),
-          Column("reading_id", Integer, ForeignKey("readings.id"), nullable=False),
-          Column("decision", String(10), nullable=False),
-          Column("comment", Text, nullable=False),
-          Column("reviewer_id", Integer, ForeignKey("users.id"), nullable=False),
-          Column("reviewed_at", UTCDateTime, nullable=False),
-          CheckConstraint("decision IN ('accepted', 'retake', 'rejected')", name="ck_reviews_decision"),
-          Index("ix_reviews_reading_id", "reading_id"))
-    Table("audit_log", m,
-          Column("id", Integer, primary_key=True),
-          Column("at", UTCDateTime, nullable=False),
-          Column("actor_id", Integer, ForeignKey("users.id")),
-          Column("actor", String(64), nullable=False),
-          Column("action", String(40), nullable=False),
-          Column("object_type", String(20), nullable=False),
-          Column("object_id", Integer),
-          Column("detail", Text, nullable=False),
-          Index("ix_audit_log_at", "at"))
-    m.create_all(conn)
+def revision_id(version: int) -> str:
+    return f"{int(version):04d}"
 
 
-def _step_2_reading_flags(conn: Connection) -> None:
-    """Index flags in their own table so the day's log filters by flag in SQL.
-
-    Backfills from the stored results of every existing reading.
-    """
-    m = MetaData()
-    readings = Table("readings", m, Column("id", Integer, primary_key=True), Column("result", Text))
-    flags = Table("reading_flags", m,
-                  Column("reading_id", Integer, ForeignKey("readings.id"), primary_key=True),
-                  Column("flag", String(40), primary_key=True),
-                  Index("ix_reading_flags_flag", "flag"))
-    flags.create(conn)
-    batch = []
-    for reading_id, result_text in conn.execute(select(readings.c.id, readings.c.result)):
-        for flag in sorted(set(json.loads(result_text).get("flags") or [])):
-            batch.append({"reading_id": reading_id, "flag": flag})
-        if len(batch) >= 1000:
-            conn.execute(flags.insert(), batch)
-            batch = []
-    if batch:
-        conn.execute(flags.insert(), batch)
+@lru_cache(maxsize=8)
+def known_revisions(location: str = SCRIPT_LOCATION) -> tuple[str, ...]:
+    """The revision ids of ``location``, base first; checks that they are consecutive numbers."""
+    script = ScriptDirectory(location)
+    ids = tuple(reversed([r.revision for r in script.walk_revisions()]))
+    if len(script.get_heads()) != 1:
+        raise SchemaError(f"the migration scripts have several heads: {script.get_heads()}")
+    want = tuple(revision_id(v) for v in range(BASELINE, BASELINE + len(ids)))
+    if ids != want:
+        raise SchemaError(f"migration revisions must be numbered {want}, found {ids}")
+    return ids
 
 
-STEPS: tuple[Callable[[Connection], None], ...] = (_step_1_initial, _step_2_reading_flags)
-HEAD = len(STEPS)
+def head(location: str = SCRIPT_LOCATION) -> int:
+    return int(known_revisions(location)[-1])
+
+
+HEAD = head()
+
+
+@dataclass
+class Status:
+    """Where a database stands: its ``schema_version`` row (0 if none) and its Alembic revision."""
+
+    version: int
+    revision: str | None
+
+    @property
+    def current(self) -> int:
+        return max(self.version, int(self.revision) if (self.revision or "").isdigit() else 0)
+
+
+@dataclass
+class Upgrade:
+    """What ``upgrade`` did: from and to which version, whether a release-2 database was stamped."""
+
+    before: int
+    after: int
+    stamped: bool = False
+    backup: str | None = None  # the copy taken before an SQLite file was changed
+
+    def describe(self) -> str:
+        if self.before == 0 and self.after > 0:
+            text = f"new database: schema version {self.after} created"
+        elif self.before == self.after:
+            text = f"schema version {self.after}, already current"
+            if self.stamped:
+                text = (f"schema version {self.after}: a release-{self.after} database, now recorded as "
+                        f"Alembic revision {revision_id(self.after)}; no table changed")
+        else:
+            text = f"schema upgraded from version {self.before} to {self.after}"
+            if self.stamped:
+                text += f" (recorded as Alembic revision {revision_id(self.after)})"
+        if self.backup:
+            text += f"; the database as it was is saved in {self.backup}"
+        return text
+
+
+def status(conn: Connection) -> Status:
+    names = set(inspect(conn).get_table_names())
+    revision = None
+    if "alembic_version" in names:
+        revision = conn.exec_driver_sql("SELECT version_num FROM alembic_version").scalar()
+    if "schema_version" not in names:
+        if revision is None and names & set(KNOWN_TABLES):
+            raise SchemaError("the database has slipwise tables but no schema_version table; "
+                              "it was not created by slipwise migrations")
+        return Status(0, revision)
+    row = conn.exec_driver_sql("SELECT version FROM schema_version").first()
+    return Status(int(row[0]) if row else 0, revision)
 
 
 def current_version(conn: Connection) -> int:
     """The schema version of the database behind ``conn`` (0 for an empty one)."""
-    names = set(inspect(conn).get_table_names())
-    if "schema_version" not in names:
-        if names & set(KNOWN_TABLES):
-            raise SchemaError("the database has slipwise tables but no schema_version table; "
-                              "it was not created by slipwise migrations")
-        return 0
-    row = conn.exec_driver_sql("SELECT version FROM schema_version").first()
-    return int(row[0]) if row else 0
+    return status(conn).current
+
+
+def check_not_newer(st: Status, location: str = SCRIPT_LOCATION) -> None:
+    top = head(location)
+    if st.revision is not None and st.revision not in known_revisions(location):
+        raise SchemaTooNewError(
+            f"the database is at schema revision {st.revision}, which this slipwise (version {top}) does not "
+            "know: it is newer than this slipwise; upgrade slipwise or use another database")
+    if st.current > top:
+        raise SchemaTooNewError(
+            f"the database is at schema version {st.current}, newer than this slipwise (version {top}); "
+            "upgrade slipwise or use another database")
+
+
+def is_current(st: Status, target: int) -> bool:
+    """True when ``upgrade(target)`` has nothing to write."""
+    if st.current >= BASELINE and st.revision is None:
+        return False  # a release-2 database still to be stamped
+    return st.current >= target
 
 
 def _lock(conn: Connection) -> None:
@@ -173,27 +148,54 @@ def _lock(conn: Connection) -> None:
     # SQLite: the store opens write transactions with BEGIN IMMEDIATE, which locks the file
 
 
-def upgrade(conn: Connection, target: int = HEAD) -> tuple[int, int]:
-    """Run the pending steps up to ``target`` inside the caller's write transaction.
+def alembic_config(conn: Connection, schema: str | None = None, location: str = SCRIPT_LOCATION) -> Config:
+    """An Alembic configuration in code (no alembic.ini): the scripts, the connection, the schema."""
+    cfg = Config()
+    cfg.set_main_option("script_location", location)
+    cfg.attributes["connection"] = conn
+    cfg.attributes["schema"] = schema
+    return cfg
 
-    Returns ``(version_before, version_after)``. Raises SchemaTooNewError for a
-    database newer than this code.
+
+def upgrade(conn: Connection, target: int | None = None, schema: str | None = None,
+            location: str = SCRIPT_LOCATION, before_change: Callable[[int], None] | None = None) -> Upgrade:
+    """Bring the database behind ``conn`` to ``target`` (default: head) inside the caller's write transaction.
+
+    ``conn`` comes from ``Database.migration()`` (on SQLite it turns foreign-key enforcement off, which
+    SQLite needs to rebuild a table others refer to; env.py checks every reference before the commit).
+
+    ``schema`` is the PostgreSQL schema the connection's search_path points at (Alembic's version table
+    goes there too). Raises SchemaTooNewError for a database newer than these scripts.
     """
-    if not 0 <= target <= HEAD:
-        raise ValueError(f"target version must be 0 to {HEAD}")
+    top = head(location)
+    target = top if target is None else target
+    if not 0 <= target <= top:
+        raise ValueError(f"target version must be 0 to {top}")
     _lock(conn)
-    before = current_version(conn)
-    if before > HEAD:
-        raise SchemaTooNewError(
-            f"the database is at schema version {before}, newer than this slipwise (version {HEAD}); "
-            "upgrade slipwise or use another database")
-    if before >= target:
-        return before, before
-    if before == 0:
-        m = MetaData()
-        Table("schema_version", m, Column("version", Integer, nullable=False)).create(conn, checkfirst=True)
-        conn.exec_driver_sql("INSERT INTO schema_version (version) VALUES (0)")
-    for number in range(before + 1, target + 1):
-        STEPS[number - 1](conn)
-        conn.exec_driver_sql(f"UPDATE schema_version SET version = {int(number)}")
-    return before, target
+    st = status(conn)
+    check_not_newer(st, location)
+    before = st.current
+    if is_current(st, target) or (target < BASELINE and before >= target):
+        return Upgrade(before, before)
+    if before_change is not None and 0 < before < target:
+        before_change(before)
+    version = st.version if st.revision is None else None
+    if version is not None and (0 < version < BASELINE or target < BASELINE):
+        # release 1 (or a test building an old database): release 2's own steps, then Alembic from 0002
+        if version == 0:
+            Table("schema_version", MetaData(), Column("version", Integer, nullable=False)).create(conn)
+            conn.exec_driver_sql("INSERT INTO schema_version (version) VALUES (0)")
+        for number in range(version + 1, min(target, BASELINE) + 1):
+            legacy_steps.STEPS[number - 1](conn)
+            conn.exec_driver_sql(f"UPDATE schema_version SET version = {int(number)}")
+        if target < BASELINE:
+            return Upgrade(before, target)
+        version = BASELINE
+    cfg = alembic_config(conn, schema, location)
+    stamped = False
+    if version is not None and version >= BASELINE:
+        command.stamp(cfg, revision_id(version))
+        stamped = True
+    command.upgrade(cfg, revision_id(target))
+    conn.exec_driver_sql(f"UPDATE schema_version SET version = {int(target)}")
+    return Upgrade(before, target, stamped)

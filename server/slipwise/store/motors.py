@@ -32,9 +32,6 @@ def site_id(conn: Connection, name: str, create: bool = False) -> int | None:
         return conn.execute(select(sites.c.id).where(sites.c.name == name)).scalar_one()
 
 
-def list_sites(conn: Connection) -> list[str]:
-    return list(conn.execute(select(sites.c.name).order_by(sites.c.name)).scalars())
-
 
 def _latest_revision_ids():
     return (select(motor_revisions.c.motor_id, func.max(motor_revisions.c.revision).label("revision"))
@@ -82,10 +79,6 @@ def latest_revision(conn: Connection, motor_id: int) -> RowMapping | None:
                         .join(motors, motors.c.id == motor_revisions.c.motor_id)
                         .where(motor_revisions.c.motor_id == motor_id)
                         .order_by(motor_revisions.c.revision.desc()).limit(1)).mappings().first()
-
-
-def get_revision(conn: Connection, revision_id: int) -> RowMapping | None:
-    return conn.execute(select(motor_revisions).where(motor_revisions.c.id == revision_id)).mappings().first()
 
 
 def insert_motor(conn: Connection, site: int, tag: str, created_by: int | None, created_at: datetime) -> int:

@@ -110,8 +110,8 @@ def iter_export_rows(conn: Connection, **filters) -> Iterator[RowMapping]:
 
 
 def nameplate_row(conn: Connection, reading_id: int) -> RowMapping | None:
-    """A reading's stored inputs, taken_at, engine_version, tag and the nameplate revision it used."""
-    return conn.execute(select(readings.c.inputs, readings.c.taken_at, readings.c.engine_version, motors.c.tag,
+    """A reading's stored inputs and result, taken_at, engine_version, tag and the nameplate revision it used."""
+    return conn.execute(select(readings.c.inputs, readings.c.result, readings.c.taken_at, readings.c.engine_version, motors.c.tag,
                                *[motor_revisions.c[f] for f in REVISION_FIELDS])
                         .select_from(readings)
                         .join(motors, motors.c.id == readings.c.motor_id)

@@ -1,6 +1,6 @@
 """The current schema (head of the migration steps), used by every query.
 
-The migration steps in ``migrations.py`` build this schema on a database;
+The Alembic revisions in ``alembic/versions/`` build this schema on a database;
 ``tests/service/test_migrations.py`` checks that the two agree, so a column
 added here without a migration step fails the suite.
 
@@ -27,7 +27,13 @@ metadata = MetaData()
 
 schema_version = Table(
     "schema_version", metadata,
-    Column("version", Integer, nullable=False),
+    Column("version", Integer, nullable=False),  # the integer of the Alembic revision, for every release to read
+)
+
+# Alembic's own table (it creates and writes it; declared so this module lists every table there is)
+alembic_version = Table(
+    "alembic_version", metadata,
+    Column("version_num", String(32), primary_key=True),
 )
 
 users = Table(

@@ -7,14 +7,17 @@ Column order (stable; new columns are only ever appended):
    order; a name that is also a result column gets the prefix ``nameplate_``
    (``nameplate_poles``, ``nameplate_breakdown_torque_pct``)
 3. the reading fields of the contract, in contract order (``taken_at`` last)
-4. every result column of the contract, in contract order; ``flags`` is the
-   flag codes separated by ``;`` (as in ``slipwise analyze``), ``findings`` the finding texts separated by
-   `` | ``
+4. every result column of the contract, in contract order, written by the
+   one commissioning-record writer (:mod:`slipwise.engine.records`, shared
+   with ``slipwise analyze``): ``flags`` the codes joined by ``;``,
+   ``findings`` the finding texts joined by `` | ``, numbers with the
+   decimals of ``RESULT_DECIMALS``
 5. ``cautions, technician, technician_name, received_at, supersedes,
    superseded_by, review_decision, review_comment, reviewer, reviewed_at``
 
 UTF-8, a header row, RFC 4180 quoting, ``\\r\\n`` line ends. Empty cell = not
-given / not applicable. Numbers are written as numbers. A text cell starting
+given / not applicable. Numbers are written as numbers; the nameplate and
+reading numbers as they were entered. A text cell starting
 with ``=``, ``+``, ``-``, ``@``, tab or carriage return gets a leading ``'``
 so a spreadsheet shows it as text instead of running it as a formula (OWASP,
 "CSV Injection").
@@ -30,6 +33,7 @@ from typing import Any, Iterable, Iterator, Mapping
 from flask import Blueprint, Response
 
 from slipwise.contract import NAMEPLATE_FIELDS, READING_FIELDS, RESULT_COLUMNS
+from slipwise.engine.records import cautions_cell, neutralise, result_cells
 from slipwise.services import readings as services
 
 from .auth import requires
@@ -47,26 +51,13 @@ _TAIL = ("cautions", "technician", "technician_name", "received_at", "supersedes
 EXPORT_COLUMNS: tuple[str, ...] = (("reading_id", "client_id", "site", "tag", "location", "description",
                                     "motor_revision") + _NAMEPLATE_HEADERS + _READING_NUMBERS + ("taken_at",)
                                    + RESULT_COLUMNS + _TAIL)
-_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
 _ROWS_PER_CHUNK = 1000
+__all__ = ["EXPORT_COLUMNS", "export_row", "csv_chunks", "neutralise"]
 
-
-def neutralise(value: Any) -> Any:
-    """Prefix text a spreadsheet would evaluate; numbers and None pass unchanged."""
-    if value.__class__ is str and value and value[0] in _FORMULA_START:
-        return "'" + value
-    return value
-
-
-_RESULT_AT = EXPORT_COLUMNS.index(RESULT_COLUMNS[0])
-_FLAGS_AT = EXPORT_COLUMNS.index("flags")
-_FINDINGS_AT = EXPORT_COLUMNS.index("findings")
 _ENGINE_AT = EXPORT_COLUMNS.index("engine_version")
-# cells that can hold free text (the others are numbers, validated codes, ids or ISO times)
+# cells outside the result part that can hold free text (the others are numbers, ids or ISO times)
 _TEXT_AT = tuple(EXPORT_COLUMNS.index(c) for c in (
-    "site", "tag", "location", "description", "efficiency_class", "supply_zone", "flags", "findings", "error",
-    "operating_side", "error_field", "cautions", "technician", "technician_name", "review_comment", "reviewer")
-    if c in EXPORT_COLUMNS)
+    "site", "tag", "location", "description", "technician", "technician_name", "review_comment", "reviewer"))
 
 
 def export_row(row: Mapping[str, Any]) -> list[Any]:
@@ -74,22 +65,15 @@ def export_row(row: Mapping[str, Any]) -> list[Any]:
     loads = json.loads
     iget = loads(row["inputs"]).get
     result = loads(row["result"])
-    rget = result.get
     reviewed = row["reviewed_at"]
-    findings = rget("findings") or ()
     cells = [row["id"], row["client_id"], row["site"], row["tag"], row["location"], row["description"],
              row["motor_revision"], *[row[f] for f in _NAMEPLATE], *[iget(f) for f in _READING_NUMBERS],
-             row["taken_at"], *[rget(c) for c in RESULT_COLUMNS],
-             " | ".join(dict.fromkeys(f["caution"] for f in findings if f.get("caution"))), row["technician"],
+             row["taken_at"], *result_cells(result), cautions_cell(result), row["technician"],
              row["technician_name"], row["received_at"].isoformat(), row["supersedes_id"], row["superseded_by"],
              row["decision"], row["comment"], row["reviewer"], reviewed.isoformat() if reviewed else None]
-    cells[_FLAGS_AT] = ";".join(cells[_FLAGS_AT] or ())
-    cells[_FINDINGS_AT] = " | ".join(f.get("text", "") for f in findings)
-    cells[_ENGINE_AT] = row["engine_version"]  # the version that interpreted this row
+    cells[_ENGINE_AT] = neutralise(row["engine_version"])  # the version that interpreted this row
     for i in _TEXT_AT:
-        v = cells[i]
-        if v and v.__class__ is str and v[0] in _FORMULA_START:
-            cells[i] = "'" + v
+        cells[i] = neutralise(cells[i])
     return cells
 
 

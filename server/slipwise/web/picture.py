@@ -10,8 +10,25 @@ from typing import Any, Mapping
 _lock = threading.Lock()  # matplotlib's font cache and rcParams are not thread-safe
 
 
+def picture_title(summary: Mapping[str, Any], result: Mapping[str, Any], reading_id: int) -> str:
+    """The picture's title: which reading, and which engine produced the points drawn.
+
+    The points come from the stored result; the motor's curves from the engine
+    running now, named too when it is another version.
+    """
+    from slipwise.contract import ENGINE_VERSION
+
+    stored = result.get("engine_version") or summary["engine_version"]
+    drawn_by = "" if stored == ENGINE_VERSION else f"; curves drawn by engine {ENGINE_VERSION}"
+    return (f"{summary['tag']} — reading {reading_id}, taken {summary['taken_at']}\n"
+            f"points from the stored result of engine {stored}{drawn_by}")
+
+
 def render_torque_speed_svg(curve: Mapping[str, Any], title: str) -> bytes:
     """SVG of the curves returned by ``slipwise.engine.torque_speed_curve``.
+
+    The view passes them through ``interpretation.with_stored_result`` first,
+    so the points drawn are the stored result's.
 
     Draws the motor's torque-speed curve at rated and at measured voltage, the
     driven load's torque law, the operating point and the breakdown point.

@@ -8,14 +8,14 @@ from flask import Blueprint, Response, g, request
 
 from slipwise.contract import READING_FIELDS
 from slipwise.services import readings as services
-from slipwise.services.interpretation import torque_speed
+from slipwise.services.interpretation import torque_speed, with_stored_result
 from slipwise.services.records import Submission
 from slipwise.store import validation
 from slipwise.store.types import utcnow
 
 from .auth import requires
 from .params import date_param, flag_param, int_param, query, text_param
-from .picture import render_torque_speed_svg
+from .picture import picture_title, render_torque_speed_svg
 from .render import day_log_json, reading_record_json, review_json
 from .security import SVG_CONTENT_SECURITY_POLICY, json_body
 from .state import state
@@ -73,16 +73,16 @@ def picture(reading_id: int):
     query(())
     st = state()
     record, summary = services.picture_record(st.db, reading_id)
-    # a stored reading never changes, so its picture depends only on the engine that draws it
+    # a stored reading never changes and its points come from its stored result, so its picture
+    # depends only on the engine that draws the motor's curves
     key = reading_id
     with st.picture_lock:
         svg = st.picture_cache.get(key)
         if svg is not None:
             st.picture_cache.move_to_end(key)
     if svg is None:
-        curve = torque_speed(record, st.thresholds)
-        svg = render_torque_speed_svg(curve, title=f"{summary['tag']} — reading {reading_id}, "
-                                                   f"taken {summary['taken_at']}")
+        curve = with_stored_result(torque_speed(record, st.thresholds), summary["result"], record["speed_rpm"])
+        svg = render_torque_speed_svg(curve, title=picture_title(summary, summary["result"], reading_id))
         with st.picture_lock:
             st.picture_cache[key] = svg
             while len(st.picture_cache) > st.picture_cache_size:

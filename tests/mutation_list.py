@@ -1,0 +1,130 @@
+"""Hand-listed mutations of the physics and the engine, and whether the tests catch them.
+
+Run from the repository root with the project's interpreter::
+
+    .venv/bin/python tests/mutation_list.py            # all mutations
+    .venv/bin/python tests/mutation_list.py M3 M7a     # some of them
+
+Each mutation is one text replacement in one file: (file, old text, new text).
+The file is restored afterwards whatever happens. An old text that is not found
+exactly once stops the run with an error: after a refactoring (the engine split,
+a formula moved into the physics package), update that entry's file and texts to
+where the formula now lives. Exit status 1 if any mutation survives.
+Not collected by pytest (no ``test_`` prefix).
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+PHYS = "server/slipwise/physics/"
+ENGINE = "server/slipwise/engine/pipeline.py"
+
+
+@dataclass(frozen=True)
+class Mutation:
+    name: str
+    what: str
+    file: str
+    old: str
+    new: str
+    tests: tuple[str, ...]
+
+
+MUTATIONS = (
+    Mutation("M1", "stator copper loss ~ load^2 instead of current^2 (input-power method)", ENGINE,
+             "efficiency.scaled_losses_w(central, flux, freq_ratio, speed_ratio, current_ratio)",
+             "efficiency.scaled_losses_w(central, flux, freq_ratio, speed_ratio, out_slip.value)",
+             ("tests/engine/test_physics_laws.py",)),
+    Mutation("M1b", "stator copper loss ~ load^2 instead of current^2 (loss model)", PHYS + "efficiency.py",
+             "stator = budget.stator_w * np.asarray(current_ratio, dtype=float) ** 2",
+             "stator = budget.stator_w * np.asarray(speed_ratio, dtype=float) ** 2",
+             ("tests/physics/test_efficiency.py",)),
+    Mutation("M2", "past-breakdown check dropped", ENGINE,
+             "stable = torque_speed.is_stable(motor_slope, load_slope) & (s_run < s_max)",
+             "stable = torque_speed.is_stable(motor_slope, load_slope)",
+             ("tests/engine/test_physics_laws.py",)),
+    Mutation("M3", "stability inequality flipped", PHYS + "torque_speed.py",
+             "return np.asarray(motor_slope, dtype=float) < np.asarray(load_slope, dtype=float)",
+             "return np.asarray(motor_slope, dtype=float) > np.asarray(load_slope, dtype=float)",
+             ("tests/physics/test_torque_speed.py",)),
+    Mutation("M4", "slip band upper limit tol instead of tol/(1 - tol)", PHYS + "load.py",
+             "half_high = _combine_rel(tol / (1.0 - tol), tach, volt)",
+             "half_high = _combine_rel(tol, tach, volt)",
+             ("tests/physics/test_load.py",)),
+    Mutation("M5", "rotor loss s P instead of s/(1 - s) P (rated budget)", PHYS + "efficiency.py",
+             "rotor = rotor_copper_loss_w(s, p_out + fw)",
+             "rotor = s * (p_out + fw)",
+             ("tests/physics/test_efficiency.py",)),
+    Mutation("M5b", "rotor loss s P instead of s/(1 - s) P (operating point)", PHYS + "efficiency.py",
+             "rotor = rotor_copper_loss_w(s, np.asarray(output_w, dtype=float) + fw)",
+             "rotor = s * (np.asarray(output_w, dtype=float) + fw)",
+             ("tests/physics/test_efficiency.py",)),
+    Mutation("M6", "slip taken at the measured frequency on mains (slip speed with V/V_r only)", ENGINE,
+             "slip_equiv = np.where(on_drive, slip_rpm, s * ns_r)",
+             "slip_equiv = np.where(on_drive, slip_rpm, slip_rpm)",
+             ("tests/engine/test_physics_laws.py",)),
+    Mutation("M7a", "core loss held constant (loss model)", PHYS + "efficiency.py",
+             "core = budget.core_w * np.asarray(flux_ratio, dtype=float) ** 2 * np.asarray(frequency_ratio, "
+             "dtype=float)",
+             "core = budget.core_w",
+             ("tests/physics/test_efficiency.py",)),
+    Mutation("M7b", "core loss held constant (input-power method)", ENGINE,
+             "efficiency.scaled_losses_w(central, flux, freq_ratio, speed_ratio, current_ratio)",
+             "efficiency.scaled_losses_w(central, 1.0, 1.0, speed_ratio, current_ratio)",
+             ("tests/engine/test_physics_laws.py",)),
+    Mutation("M8", "locked-rotor torque not scaled by V^2", PHYS + "torque_speed.py",
+             "lrt_now = locked_rotor_torque_pct * (voltage_v / rated_voltage_v) ** 2",
+             "lrt_now = locked_rotor_torque_pct",
+             ("tests/engine/test_physics_laws.py",)),
+    Mutation("M9", "hp taken as 1000 W", PHYS + "units.py",
+             "HORSEPOWER_W = 550.0 * FOOT_M * POUND_FORCE_N",
+             "HORSEPOWER_W = 1000.0",
+             ("tests/physics/test_units.py",)),
+    Mutation("M10", "no voltage (flux) factor in the current method", PHYS + "load.py",
+             "factor = np.asarray(flux_ratio, dtype=float) * np.asarray(speed_ratio, dtype=float)",
+             "factor = np.asarray(speed_ratio, dtype=float)",
+             ("tests/physics/test_load.py",)),
+)
+
+
+def run(m: Mutation) -> bool:
+    """Apply, test, restore. True when the tests catch the mutation (fail)."""
+    path = ROOT / m.file
+    original = path.read_text()
+    count = original.count(m.old)
+    if count != 1:
+        raise SystemExit(f"{m.name}: old text found {count} times in {m.file} (expected once); update the "
+                         f"entry to where the formula lives now:\n    {m.old}")
+    try:
+        path.write_text(original.replace(m.old, m.new))
+        proc = subprocess.run([sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider", *m.tests],
+                              cwd=ROOT, capture_output=True, text=True)
+    finally:
+        path.write_text(original)
+    if proc.returncode not in (0, 1):
+        raise SystemExit(f"{m.name}: pytest could not run (exit {proc.returncode}):\n{proc.stdout[-2000:]}")
+    caught = proc.returncode == 1
+    failed = [line.split(" - ")[0].removeprefix("FAILED ") for line in proc.stdout.splitlines()
+              if line.startswith("FAILED")]
+    print(f"{m.name:4} {'caught  ' if caught else 'SURVIVED'} {m.what}"
+          + (f"\n       by {', '.join(failed)}" if failed else ""))
+    return caught
+
+
+def main(argv: list[str]) -> int:
+    chosen = [m for m in MUTATIONS if not argv or m.name in argv]
+    unknown = set(argv) - {m.name for m in MUTATIONS}
+    if unknown:
+        raise SystemExit(f"unknown mutation(s): {', '.join(sorted(unknown))}")
+    survived = [m.name for m in chosen if not run(m)]
+    print(f"{len(chosen) - len(survived)} of {len(chosen)} caught" + (f"; survived: {survived}" if survived else ""))
+    return 1 if survived else 0
+
+
+if __name__ == "__main__":
+    sys.exit(main(sys.argv[1:]))
