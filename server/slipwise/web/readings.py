@@ -78,15 +78,11 @@ def picture(reading_id: int):
     key = reading_id
     with st.picture_lock:
         svg = st.picture_cache.get(key)
-        if svg is not None:
-            st.picture_cache.move_to_end(key)
     if svg is None:
         curve = with_stored_result(torque_speed(record, st.thresholds), summary["result"], record["speed_rpm"])
         svg = render_torque_speed_svg(curve, title=picture_title(summary, summary["result"], reading_id))
         with st.picture_lock:
             st.picture_cache[key] = svg
-            while len(st.picture_cache) > st.picture_cache_size:
-                st.picture_cache.popitem(last=False)
     etag = hashlib.sha256(svg).hexdigest()[:32]
     if request.if_none_match and etag in request.if_none_match:
         resp = Response(status=304)
