@@ -4,7 +4,7 @@
 // deletes the caches of older versions (the outbox lives in IndexedDB and is never touched here).
 // API calls always go to the network; nothing with a status >= 400 is ever cached.
 
-const VERSION = "1.0.1"; // raise with every change to a precached file
+const VERSION = "1.0.2"; // raise with every change to a precached file
 const CACHE = `slipwise-page-${VERSION}`;
 const PRECACHE = [
   "/",
@@ -13,6 +13,8 @@ const PRECACHE = [
   "/js/api.js",
   "/js/dom.js",
   "/js/fields.js",
+  "/js/fieldrules.js",
+  "/fields.json",
   "/js/outbox.js",
   "/js/provisional.js",
   "/js/result.js",

@@ -38,7 +38,7 @@ from .fields import CHOICE_FIELDS, NUMBER_FIELDS, TEXT_FIELDS, ChoiceField, Numb
 # what a spreadsheet or a phone keyboard may leave around a value. Written out so that the page's
 # JavaScript trims exactly the same characters (its String.trim and Python's str.strip differ).
 TRIM_CHARS = ("\t\n\v\f\r \u0085\u00a0\u1680\u2000\u2001\u2002\u2003\u2004\u2005\u2006\u2007\u2008\u2009"
-              "\u200a\u2028\u2029\u202f\u205f\u3000\ufeff")
+              "\u200a\u2028\u2029\u202f\u205f\u3000")
 NUMBER_PATTERN = r"^[+-]?(?:[0-9]+(?:[.,][0-9]*)?|[.,][0-9]+)(?:[eE][+-]?[0-9]+)?$"
 AMBIGUOUS_PATTERN = r"^[+-]?[1-9][0-9]{0,2},[0-9]{3}$"
 _NUMBER = re.compile(NUMBER_PATTERN)

@@ -173,13 +173,20 @@ class _Body(BaseModel):
 
 
 def _kw_or_hp(values: Mapping[str, Any]) -> None:
-    if values.get("rated_power_kw") is None and values.get("rated_power_hp") is None:
+    """Rated output in kW or in hp, not both: two figures on one form that disagree are a typo to ask about."""
+    kw, hp = values.get("rated_power_kw"), values.get("rated_power_hp")
+    if kw is None and hp is None:
         spec = NUMBER_FIELDS["rated_power_kw"]
         raise FieldError(f"rated_power_kw is required (or rated_power_hp): {spec.range_text()}", "rated_power_kw")
+    if kw is not None and hp is not None:
+        raise FieldError("give rated_power_kw or rated_power_hp, not both (leave the other blank)", "rated_power_hp")
 
 
-KW_OR_HP = [{"required": ["rated_power_kw"], "properties": {"rated_power_kw": {"type": "number"}}},
-            {"required": ["rated_power_hp"], "properties": {"rated_power_hp": {"type": "number"}}}]
+_NULL = {"nullable": True, "enum": [None]}
+KW_OR_HP = [{"required": ["rated_power_kw"], "properties": {"rated_power_kw": {"type": "number"},
+                                                             "rated_power_hp": _NULL}},
+            {"required": ["rated_power_hp"], "properties": {"rated_power_hp": {"type": "number"},
+                                                             "rated_power_kw": _NULL}}]
 
 
 def _schema_extra(required: tuple[str, ...], description: str = "", **clauses):
@@ -252,8 +259,8 @@ def _readings() -> dict:
 
 
 _NAMEPLATE_REQUIRED = tuple(f.name for f in NAMEPLATE_NUMBERS if f.required)
-_ANY_NAMEPLATE = {"properties": {n: {"nullable": True, "enum": [None]} for n in NAMEPLATE_NAMES}}
-_NO_MOTOR = {"properties": {"motor_id": {"nullable": True, "enum": [None]}}}
+_ANY_NAMEPLATE = {"properties": {n: _NULL for n in NAMEPLATE_NAMES}}
+_NO_MOTOR = {"properties": {"motor_id": _NULL}}
 
 MotorInput = _model(
     "MotorInput", _NameplateBody, ("site", "tag") + _NAMEPLATE_REQUIRED,
@@ -264,9 +271,10 @@ MotorUpdate = _model(
     "MotorUpdate", _NameplateBody, _NAMEPLATE_REQUIRED,
     "the whole nameplate (a blank field becomes blank); site and tag cannot change; a changed nameplate "
     "becomes a new revision; rated_power_kw or rated_power_hp is required as well", {"anyOf": KW_OR_HP},
-    site=_field(lambda v: v, {"type": "string", "maxLength": 120, "description": "as registered (cannot change)"}),
-    tag=_field(lambda v: v, {"type": "string", "maxLength": TEXT_FIELDS["tag"].max_chars,
-                             "description": "as registered (cannot change)"}),
+    site=_field(lambda v: v, {"type": "string", "readOnly": True,
+                              "description": "as registered: it cannot change (a different value gives 400)"}),
+    tag=_field(lambda v: v, {"type": "string", "readOnly": True,
+                             "description": "as registered: it cannot change (a different value gives 400)"}),
     location=_text("location"), description=_text("description"),
     revision=_field(lambda v: record_id("revision", v, required=False),
                     id_schema(description="the revision being edited; 409 when it is no longer the current one")),
@@ -336,3 +344,15 @@ def parse_body(model: type[BaseModel], body: Mapping[str, Any]) -> dict:
         err = errors[0]
         field = str(err["loc"][0]) if err["loc"] else None
         raise FieldError(f"{field}: {err['msg']}", field) from None
+
+
+def nameplate_values(row: Mapping[str, Any]) -> dict:
+    """The nameplate fields of a row that is not a request body (a demo CSV row), by the same rules."""
+    out = {name: parse_value(name, row.get(name)) for name in NAMEPLATE_NAMES}
+    _kw_or_hp(out)
+    return out
+
+
+def reading_values(row: Mapping[str, Any]) -> dict:
+    """The reading's number fields of a row that is not a request body, by the same rules."""
+    return {name: parse_value(name, row.get(name)) for name in READING_NAMES}

@@ -6,10 +6,12 @@ import json
 
 from flask import Blueprint, Response, jsonify
 
-from slipwise.contract import ENGINE_VERSION, INPUT_FIELDS
-from slipwise.store import audit, validation
+from slipwise.contract import ENGINE_VERSION
+from slipwise.contract.models import READING_NAMES, InterpretInput, parse_body, taken_at
+from slipwise.store import audit
 from slipwise.store import motors as store_motors
 from slipwise.store.readings import engine_record, to_json
+from slipwise.store.schema import REVISION_NAMEPLATE_FIELDS
 from slipwise.store.types import utcnow
 
 from .auth import requires
@@ -38,24 +40,18 @@ def health():
 @requires("technician")
 def interpret_without_storing():
     body = json_body()
-    validation.unknown_fields(body, frozenset(INPUT_FIELDS) | {"motor_id"})
-    reading = validation.reading(body)
-    taken_at, _, _ = validation.taken_at(body.get("taken_at"), utcnow())
-    if body.get("motor_id") is not None:
-        motor_id = validation.identifier("motor_id", body["motor_id"])
-        nameplate_keys = set(INPUT_FIELDS) - set(reading) - {"taken_at"}
-        given = sorted(k for k in body if k in nameplate_keys)
-        if given:
-            from .errors import ApiError
-            raise ApiError(400, "invalid_input", "give motor_id or the nameplate fields, not both", given[0])
+    p = parse_body(InterpretInput, body)   # motor_id or a nameplate, not both (a blank field is no field)
+    reading = {name: p[name] for name in READING_NAMES}
+    when, _, _ = taken_at(p["taken_at"], utcnow())
+    if p["motor_id"] is not None:
         with state().db.read() as conn:
-            motor = store_motors.get_motor(conn, motor_id)
-        record = engine_record(motor, motor["tag"], reading, taken_at)
+            motor = store_motors.get_motor(conn, p["motor_id"])
+        record = engine_record(motor, motor["tag"], reading, when)
     else:
         # the document makes tag optional here: nothing is stored, so an untagged check is fine
-        tag = "(untagged)" if validation.blank(body.get("tag")) else validation.tag(body.get("tag"))
-        record = engine_record(validation.nameplate(body) | {"location": "", "description": ""}, tag, reading,
-                               taken_at)
+        nameplate = {name: p[name] for name in REVISION_NAMEPLATE_FIELDS}
+        record = engine_record(nameplate | {"location": "", "description": ""}, p["tag"] or "(untagged)", reading,
+                               when)
     return Response(to_json(interpret(record)), mimetype="application/json")
 
 

@@ -5,8 +5,8 @@ from __future__ import annotations
 from flask import Blueprint, g, jsonify
 
 from slipwise.store import motors as store_motors
-from slipwise.store import validation
-from slipwise.store.motors import REVISION_FIELDS
+from slipwise.contract.models import MotorInput, MotorUpdate, parse_body
+from slipwise.store.schema import REVISION_NAMEPLATE_FIELDS
 
 from .auth import requires
 from .errors import ApiError
@@ -17,14 +17,12 @@ from .state import state
 
 bp = Blueprint("motors", __name__)
 
-MOTOR_FIELDS = frozenset({"site", "tag", *REVISION_FIELDS})
+MOTOR_FIELDS = frozenset(MotorInput.model_fields)   # the accepted keys (the document shows the same model)
 
 
-def _fields(body: dict) -> dict:
-    fields = validation.nameplate(body)
-    fields["location"] = validation.text("location", body.get("location"))
-    fields["description"] = validation.text("description", body.get("description"))
-    return fields
+
+def _fields(parsed: dict) -> dict:
+    return {name: parsed[name] for name in (*REVISION_NAMEPLATE_FIELDS, "location", "description")}
 
 
 @bp.get("/motors")
@@ -40,10 +38,9 @@ def list_motors():
 @requires("technician")   # a technician at the motor registers it from its nameplate; edits are supervisors'
 def create_motor():
     body = json_body()
-    validation.unknown_fields(body, MOTOR_FIELDS)
-    site = validation.text("site", body.get("site"), required=True)
-    tag = validation.tag(body.get("tag"))
-    fields = _fields(body)
+    parsed = parse_body(MotorInput, body)
+    site, tag = parsed["site"], parsed["tag"]
+    fields = _fields(parsed)
     check_nameplate(tag, fields)
     with state().db.write() as conn:
         motor = store_motors.create_motor(conn, g.user, site, tag, fields)
@@ -62,11 +59,9 @@ def get_motor(motor_id: int):
 @requires("supervisor")
 def revise_motor(motor_id: int):
     body = json_body()
-    validation.unknown_fields(body, MOTOR_FIELDS | {"revision"})
-    expected = body.get("revision")
-    if expected is not None:
-        expected = validation.identifier("revision", expected)
-    fields = _fields(body)
+    parsed = parse_body(MotorUpdate, body)
+    expected = parsed["revision"]
+    fields = _fields(parsed)
     db = state().db
     with db.read() as conn:
         current = store_motors.get_motor(conn, motor_id)
