@@ -11,6 +11,7 @@ the :class:`FieldError` the web layer answers with ``{"error": {"code", "message
 from __future__ import annotations
 
 import re
+import unicodedata
 import uuid
 from datetime import date, datetime, timedelta, timezone
 from functools import lru_cache
@@ -44,12 +45,30 @@ _TAG_REFUSED = (r"\x00-\x1f\x7f-\x9f\u00ad\u0600-\u0605\u061c\u06dd\u070f\u0890\
 _TRIM_CLASS = "".join(f"\\u{ord(c):04x}" for c in TRIM_CHARS)
 
 
+def _bmp_class(spec, keep_trim: bool) -> str:
+    """The characters up to U+FFFF a text field allows, as one regex character class of ranges."""
+    def ok(c: int) -> bool:
+        ch = chr(c)
+        return (not 0xD800 <= c <= 0xDFFF and unicodedata.category(ch) not in spec.refused_categories
+                and ch not in "\t\n" and (keep_trim or ch not in TRIM_CHARS))
+    parts, start = [], None
+    for c in range(0x20, 0x10001):
+        if c <= 0xFFFF and ok(c):
+            start = c if start is None else start
+        elif start is not None:
+            parts.append(f"\\u{start:04x}" + (f"-\\u{c - 1:04x}" if c - 1 > start else ""))
+            start = None
+    return "[" + "".join(parts) + "]"
+
+
 def _text_schema(name: str, limit: int | None = None) -> dict:
     spec = TEXT_FIELDS[name]
     n = limit or spec.max_chars
     if name == "tag":
-        inner = f"[^{_TAG_REFUSED}{_TRIM_CLASS}]"
-        pattern = f"^[{_TRIM_CLASS}]*{inner}([^{_TAG_REFUSED}]*{inner})?[{_TRIM_CLASS}]*$"
+        # positive classes of Basic Multilingual Plane ranges: they mean the same to Python's re and to ECMA-262
+        allowed = _bmp_class(spec, keep_trim=True)
+        inner = _bmp_class(spec, keep_trim=False)
+        pattern = f"^[{_TRIM_CLASS}]*{inner}({allowed}*{inner})?[{_TRIM_CLASS}]*$"
     elif spec.one_line:
         pattern = f"^[^\\x00-\\x1f\\x7f-\\x9f]*[^{_TRIM_CLASS}\\x00-\\x1f\\x7f-\\x9f][^\\x00-\\x1f\\x7f-\\x9f]*$"
     elif spec.required:
@@ -305,7 +324,8 @@ ReviewInput = _model(
 InterpretInput = _model(
     "InterpretInput", _InterpretBody, ("frequency_hz", "speed_rpm"),
     "a nameplate (as for MotorInput, without site) or motor_id, plus a reading (at least one line current)",
-    {"allOf": [{"anyOf": ONE_CURRENT}], "anyOf": [{"required": ["motor_id"], "properties": {"motor_id": {"type": "integer"}}, **_ANY_NAMEPLATE},
+    {"allOf": [{"anyOf": ONE_CURRENT}], "anyOf": [{"required": ["motor_id"],
+                "properties": {"motor_id": {"type": "integer"}, **_ANY_NAMEPLATE["properties"]}},
                {"required": list(_NAMEPLATE_REQUIRED), **_NO_MOTOR,
                 "properties": {**_NO_MOTOR["properties"], **{n: {"type": "number"} for n in _NAMEPLATE_REQUIRED}},
                 "anyOf": KW_OR_HP}]},
