@@ -67,7 +67,7 @@ export function parseText(t, raw) {
   const text = trimCell(String(raw ?? ""), t.rules);
   if (text === "") return t.required ? { value: "", error: `${t.label} is needed.` } : { value: "", error: null };
   const chars = [...text];
-  const bad = chars.find((c) => (t.bmp_only && c.codePointAt(0) > 0xffff) || (t.refused.test(c) && !(!t.one_line && (c === "\t" || c === "\n"))))
+  const bad = chars.find((c) => (t.refused.test(c) && !(!t.one_line && (c === "\t" || c === "\n"))))
     ?? (t.one_line ? chars.find((c) => c === "\t" || c === "\n") : undefined);
   if (bad !== undefined) {
     const code = bad.codePointAt(0).toString(16).toUpperCase().padStart(4, "0");

@@ -57,7 +57,7 @@ TABLE = [
     ("tag with zero-width space", "tag", "P-1\u200b01", REFUSED, True),
     ("tag with right-to-left override", "tag", "P-1\u202e01", REFUSED, True),
     ("tag with soft hyphen", "tag", "P-1\u00ad01", REFUSED, True),
-    ("tag with an emoji", "tag", "P-101 \U0001F525", REFUSED, True),   # beyond U+FFFF
+    ("tag with an emoji", "tag", "P-101 \U0001F525", "P-101 \U0001F525", False),
     ("tag with a private-use character", "tag", "P-\U000F3F82", REFUSED, True),
     ("tag in Greek", "tag", "Αντλία-3", "Αντλία-3", False),
     ("tag with a newline", "tag", "P-1\n01", REFUSED, False),

@@ -163,8 +163,6 @@ def parse_choice(name: str, raw: Any) -> str | None:
 def refused_character(spec: TextField, text: str) -> str | None:
     """The first character the field refuses, or None."""
     for c in text:
-        if spec.bmp_only and ord(c) > 0xFFFF:
-            return c
         if unicodedata.category(c) in spec.refused_categories and not (not spec.one_line and c in "\t\n"):
             return c
         if spec.one_line and c in "\t\n":
@@ -175,8 +173,8 @@ def refused_character(spec: TextField, text: str) -> str | None:
 def text_message(spec: TextField, text: str | None = None, bad: str | None = None) -> str:
     name, n = spec.name, spec.max_chars
     if bad is not None and spec.name == "tag":
-        return (f"tag must be 1 to {n} visible characters on one line, up to U+FFFF; U+{ord(bad):04X} is a control, "
-                "invisible, direction-changing or private character, or beyond U+FFFF")
+        return (f"tag must be 1 to {n} visible characters on one line; U+{ord(bad):04X} is a control, "
+                "invisible, direction-changing or private-use character")
     if bad is not None:
         line = "one line of " if spec.one_line else "text of "
         return f"{name} must be {line}at most {n} characters, without control characters"

@@ -71,7 +71,6 @@ class TextField:
     required: bool = False
     one_line: bool = False
     refused_categories: frozenset[str] = frozenset({"Cc", "Cs"})
-    bmp_only: bool = False   # no character beyond U+FFFF (emoji, private use planes, rare scripts)
     help: str = ""
     label: str = ""
 
@@ -146,7 +145,7 @@ NAMEPLATE_FIELDS: tuple[str, ...] = ("tag",) + tuple(f.name for f in NAMEPLATE_N
 # --- text ------------------------------------------------------------------
 _TEXT_REFUSED = frozenset({"Cc", "Cs"})   # tab and newline are let through where one_line is False
 TEXT_FIELDS: dict[str, TextField] = {f.name: f for f in (
-    TextField("tag", TAG_MAX_CHARS, required=True, one_line=True, refused_categories=TAG_REFUSED_CATEGORIES, bmp_only=True,
+    TextField("tag", TAG_MAX_CHARS, required=True, one_line=True, refused_categories=TAG_REFUSED_CATEGORIES,
               help="the motor's tag as on its label: one line of visible characters", label="Tag"),
     TextField("site", 120, required=True, help="site or plant name", label="Site"),
     TextField("location", 200, help="where the motor is on the site", label="Location"),

@@ -10,6 +10,7 @@ the :class:`FieldError` the web layer answers with ``{"error": {"code", "message
 
 from __future__ import annotations
 
+import functools
 import re
 import unicodedata
 import uuid
@@ -45,18 +46,25 @@ _TAG_REFUSED = (r"\x00-\x1f\x7f-\x9f\u00ad\u0600-\u0605\u061c\u06dd\u070f\u0890\
 _TRIM_CLASS = "".join(f"\\u{ord(c):04x}" for c in TRIM_CHARS)
 
 
-def _bmp_class(spec, keep_trim: bool) -> str:
-    """The characters up to U+FFFF a text field allows, as one regex character class of ranges."""
+@functools.lru_cache(maxsize=4)
+def _allowed_class(spec, keep_trim: bool) -> str:
+    """The characters a text field allows, as one regex character class of ranges.
+
+    Up to U+FFFF as ``\\uXXXX`` escapes; beyond, as the characters themselves (JSON carries them as
+    surrogate-pair escapes): Python's re, Rust's regex and ECMA-262 with the u flag read them as code points.
+    """
     def ok(c: int) -> bool:
         ch = chr(c)
         return (not 0xD800 <= c <= 0xDFFF and unicodedata.category(ch) not in spec.refused_categories
                 and ch not in "\t\n" and (keep_trim or ch not in TRIM_CHARS))
     parts, start = [], None
-    for c in range(0x20, 0x10001):
-        if c <= 0xFFFF and ok(c):
+    def written(c: int) -> str:
+        return f"\\u{c:04x}" if c <= 0xFFFF else chr(c)
+    for c in range(0x20, 0x110001):
+        if c <= 0x10FFFF and ok(c):
             start = c if start is None else start
         elif start is not None:
-            parts.append(f"\\u{start:04x}" + (f"-\\u{c - 1:04x}" if c - 1 > start else ""))
+            parts.append(written(start) + (f"-{written(c - 1)}" if c - 1 > start else ""))
             start = None
     return "[" + "".join(parts) + "]"
 
@@ -65,9 +73,9 @@ def _text_schema(name: str, limit: int | None = None) -> dict:
     spec = TEXT_FIELDS[name]
     n = limit or spec.max_chars
     if name == "tag":
-        # positive classes of Basic Multilingual Plane ranges: they mean the same to Python's re and to ECMA-262
-        allowed = _bmp_class(spec, keep_trim=True)
-        inner = _bmp_class(spec, keep_trim=False)
+        # positive classes of ranges: they mean the same to Python's re, Rust's regex and ECMA-262 (u flag)
+        allowed = _allowed_class(spec, keep_trim=True)
+        inner = _allowed_class(spec, keep_trim=False)
         pattern = f"^[{_TRIM_CLASS}]*{inner}({allowed}*{inner})?[{_TRIM_CLASS}]*$"
     elif spec.one_line:
         pattern = f"^[^\\x00-\\x1f\\x7f-\\x9f]*[^{_TRIM_CLASS}\\x00-\\x1f\\x7f-\\x9f][^\\x00-\\x1f\\x7f-\\x9f]*$"

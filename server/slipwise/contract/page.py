@@ -34,7 +34,7 @@ def _choice(f: ChoiceField) -> dict:
 
 def _text(f: TextField) -> dict:
     return {"name": f.name, "label": f.label, "max_chars": f.max_chars, "required": f.required,
-            "one_line": f.one_line, "bmp_only": f.bmp_only, "refused_categories": sorted(f.refused_categories)}
+            "one_line": f.one_line, "refused_categories": sorted(f.refused_categories)}
 
 
 def declaration() -> dict:
