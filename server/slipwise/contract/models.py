@@ -50,8 +50,9 @@ _TRIM_CLASS = "".join(f"\\u{ord(c):04x}" for c in TRIM_CHARS)
 def _allowed_class(spec, keep_trim: bool) -> str:
     """The characters a text field allows, as one regex character class of ranges.
 
-    Up to U+FFFF as ``\\uXXXX`` escapes; beyond, as the characters themselves (JSON carries them as
-    surrogate-pair escapes): Python's re, Rust's regex and ECMA-262 with the u flag read them as code points.
+    Up to U+FFFF only, as ``\\uXXXX`` ranges: a positive class of those means the same to Python's re, Rust's
+    regex and ECMA-262. The handler also takes the characters beyond (an emoji in a tag), except private use;
+    the fuzzer's regex translation refuses astral ranges, so the document says that part in words.
     """
     def ok(c: int) -> bool:
         ch = chr(c)
@@ -60,8 +61,8 @@ def _allowed_class(spec, keep_trim: bool) -> str:
     parts, start = [], None
     def written(c: int) -> str:
         return f"\\u{c:04x}" if c <= 0xFFFF else chr(c)
-    for c in range(0x20, 0x110001):
-        if c <= 0x10FFFF and ok(c):
+    for c in range(0x20, 0x10001):
+        if c <= 0xFFFF and ok(c):
             start = c if start is None else start
         elif start is not None:
             parts.append(written(start) + (f"-{written(c - 1)}" if c - 1 > start else ""))
@@ -77,6 +78,8 @@ def _text_schema(name: str, limit: int | None = None) -> dict:
         allowed = _allowed_class(spec, keep_trim=True)
         inner = _allowed_class(spec, keep_trim=False)
         pattern = f"^[{_TRIM_CLASS}]*{inner}({allowed}*{inner})?[{_TRIM_CLASS}]*$"
+        help_text = (spec.help + "; the pattern lists the characters up to U+FFFF; beyond, any character but "
+                     "private use is accepted too (an emoji, say)")
     elif spec.one_line:
         pattern = f"^[^\\x00-\\x1f\\x7f-\\x9f]*[^{_TRIM_CLASS}\\x00-\\x1f\\x7f-\\x9f][^\\x00-\\x1f\\x7f-\\x9f]*$"
     elif spec.required:
@@ -84,7 +87,8 @@ def _text_schema(name: str, limit: int | None = None) -> dict:
     else:
         pattern = f"^[^{_CONTROLS}]*$"
     s = {"type": "string", "maxLength": n, "pattern": pattern,
-         "description": f"{spec.help}; {spec.range_text().replace(str(spec.max_chars), str(n))}"}
+         "description": f"{help_text if name == 'tag' else spec.help}; "
+                        f"{spec.range_text().replace(str(spec.max_chars), str(n))}"}
     if spec.required:
         s["minLength"] = 1
     else:
