@@ -6,11 +6,12 @@ import json
 
 from flask import Blueprint, Response, jsonify
 
-from slipwise.contract import ENGINE_VERSION, INPUT_FIELDS
+from slipwise.contract import ENGINE_VERSION
+from slipwise.contract.models import READING_NAMES, InterpretInput, parse_body, taken_at
 from slipwise.services import audit as audit_services
 from slipwise.services import readings as services
 from slipwise.services.records import to_json
-from slipwise.store import validation
+from slipwise.store.schema import REVISION_NAMEPLATE_FIELDS
 from slipwise.store.types import utcnow
 
 from .auth import requires
@@ -40,21 +41,15 @@ def health():
 def interpret_without_storing():
     st = state()
     body = json_body()
-    validation.unknown_fields(body, frozenset(INPUT_FIELDS) | {"motor_id"})
-    reading = validation.reading(body)
-    taken_at, _, _ = validation.taken_at(body.get("taken_at"), utcnow())
-    if body.get("motor_id") is not None:
-        motor_id = validation.identifier("motor_id", body["motor_id"])
-        nameplate_keys = set(INPUT_FIELDS) - set(reading) - {"taken_at"}
-        given = sorted(k for k in body if k in nameplate_keys)
-        if given:
-            from .errors import ApiError
-            raise ApiError(400, "invalid_input", "give motor_id or the nameplate fields, not both", given[0])
-        result = services.interpret_reading(st.db, reading, taken_at, motor_id=motor_id, thresholds=st.thresholds)
+    p = parse_body(InterpretInput, body)   # motor_id or a nameplate, not both (a blank field is no field)
+    reading = {name: p[name] for name in READING_NAMES}
+    when, _, _ = taken_at(p["taken_at"], utcnow())
+    if p["motor_id"] is not None:
+        result = services.interpret_reading(st.db, reading, when, motor_id=p["motor_id"], thresholds=st.thresholds)
     else:
         # the document makes tag optional here: nothing is stored, so an untagged check is fine
-        tag = "(untagged)" if validation.blank(body.get("tag")) else validation.tag(body.get("tag"))
-        result = services.interpret_reading(st.db, reading, taken_at, nameplate=validation.nameplate(body), tag=tag,
+        nameplate = {name: p[name] for name in REVISION_NAMEPLATE_FIELDS}
+        result = services.interpret_reading(st.db, reading, when, nameplate=nameplate, tag=p["tag"] or "(untagged)",
                                             thresholds=st.thresholds)
     return Response(to_json(result), mimetype="application/json")
 

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 from flask import Blueprint, g, jsonify
 
+from slipwise.contract.models import MotorInput, MotorUpdate, parse_body
 from slipwise.services import motors as services
-from slipwise.store import validation
-from slipwise.store.motors import REVISION_FIELDS
+from slipwise.store.schema import REVISION_NAMEPLATE_FIELDS
 
 from .auth import requires
 from .params import query, text_param
@@ -16,14 +16,12 @@ from .state import state
 
 bp = Blueprint("motors", __name__)
 
-MOTOR_FIELDS = frozenset({"site", "tag", *REVISION_FIELDS})
+MOTOR_FIELDS = frozenset(MotorInput.model_fields)   # the accepted keys (the document shows the same model)
 
 
-def _fields(body: dict) -> dict:
-    fields = validation.nameplate(body)
-    fields["location"] = validation.text("location", body.get("location"))
-    fields["description"] = validation.text("description", body.get("description"))
-    return fields
+
+def _fields(parsed: dict) -> dict:
+    return {name: parsed[name] for name in (*REVISION_NAMEPLATE_FIELDS, "location", "description")}
 
 
 @bp.get("/motors")
@@ -38,12 +36,11 @@ def list_motors():
 @requires("technician")   # a technician at the motor registers it from its nameplate; edits are supervisors'
 def create_motor():
     body = json_body()
-    validation.unknown_fields(body, MOTOR_FIELDS)
-    site = validation.text("site", body.get("site"), required=True)
-    tag = validation.tag(body.get("tag"))
-    fields = _fields(body)
+    parsed = parse_body(MotorInput, body)
+    fields = _fields(parsed)
     st = state()
-    return jsonify(motor_dict(services.register_motor(st.db, g.user, site, tag, fields, st.thresholds))), 201
+    motor = services.register_motor(st.db, g.user, parsed["site"], parsed["tag"], fields, st.thresholds)
+    return jsonify(motor_dict(motor)), 201
 
 
 @bp.get("/motors/<id:motor_id>")
@@ -57,12 +54,10 @@ def get_motor(motor_id: int):
 @requires("supervisor")
 def revise_motor(motor_id: int):
     body = json_body()
-    validation.unknown_fields(body, MOTOR_FIELDS | {"revision"})
-    expected = body.get("revision")
-    if expected is not None:
-        expected = validation.identifier("revision", expected)
-    fields = _fields(body)
+    parsed = parse_body(MotorUpdate, body)
+    fields = _fields(parsed)
     identity = {k: body[k] for k in ("site", "tag") if k in body}
     st = state()
-    motor, _changed = services.revise_motor(st.db, g.user, motor_id, fields, expected, identity, st.thresholds)
+    motor, _changed = services.revise_motor(st.db, g.user, motor_id, fields, parsed["revision"], identity,
+                                            st.thresholds)
     return jsonify(motor_record_dict(motor)), 200

@@ -6,11 +6,11 @@ import hashlib
 
 from flask import Blueprint, Response, g, request
 
-from slipwise.contract import READING_FIELDS
+from slipwise.contract import MAX_ID
+from slipwise.contract.models import READING_NAMES, ReadingInput, ReviewInput, parse_body, taken_at
 from slipwise.services import readings as services
 from slipwise.services.interpretation import torque_speed, with_stored_result
 from slipwise.services.records import Submission
-from slipwise.store import validation
 from slipwise.store.types import utcnow
 
 from .auth import requires
@@ -22,7 +22,8 @@ from .state import state
 
 bp = Blueprint("readings", __name__)
 
-SUBMISSION_FIELDS = frozenset({"client_id", "motor_id", "supersedes", *READING_FIELDS})
+SUBMISSION_FIELDS = frozenset(ReadingInput.model_fields)   # the accepted keys (the document shows the same model)
+
 LIST_LIMIT = 100_000
 
 
@@ -31,13 +32,10 @@ def _json(text: str, status: int = 200) -> Response:
 
 
 def parse_submission(body: dict) -> Submission:
-    validation.unknown_fields(body, SUBMISSION_FIELDS)
-    client_id = validation.client_id(body.get("client_id"))
-    motor_id = validation.identifier("motor_id", body.get("motor_id"))
-    supersedes = validation.identifier("supersedes", body.get("supersedes"), required=False)
-    inputs = validation.reading(body)
-    taken_at, taken_date, taken_at_utc = validation.taken_at(body.get("taken_at"), utcnow())
-    return Submission(client_id, motor_id, supersedes, inputs, taken_at, taken_date, taken_at_utc)
+    p = parse_body(ReadingInput, body)
+    inputs = {name: p[name] for name in READING_NAMES}
+    when, taken_date, taken_at_utc = taken_at(p["taken_at"], utcnow())
+    return Submission(p["client_id"], p["motor_id"], p["supersedes"], inputs, when, taken_date, taken_at_utc)
 
 
 @bp.post("/readings")
@@ -55,7 +53,7 @@ def day_log():
     args = query(("date", "site", "flag", "technician", "motor_id", "limit"))
     filters = dict(date=date_param(args), site=text_param(args, "site"), flag=flag_param(args),
                    technician=text_param(args, "technician", 64),
-                   motor_id=int_param(args, "motor_id", 1, validation.MAX_ID))
+                   motor_id=int_param(args, "motor_id", 1, MAX_ID))
     limit = int_param(args, "limit", 1, LIST_LIMIT, LIST_LIMIT)
     return _json(day_log_json(services.day_log(state().db, limit=limit, **filters)))
 
@@ -98,9 +96,6 @@ def picture(reading_id: int):
 @requires("supervisor")
 def review(reading_id: int):
     body = json_body()
-    validation.unknown_fields(body, frozenset({"decision", "comment"}))
-    decision = body.get("decision")
-    if not isinstance(decision, str):
-        decision = ""
-    comment = validation.text("comment", body.get("comment"), limit=2000)
-    return _json(review_json(services.review_reading(state().db, g.user, reading_id, decision, comment)), 201)
+    p = parse_body(ReviewInput, body)
+    return _json(review_json(services.review_reading(state().db, g.user, reading_id, p["decision"], p["comment"])),
+                 201)
