@@ -3,8 +3,9 @@
 Entry points: the API (``POST /api/v1/interpret``, the value as a JSON string), the page's
 checks (``static/js/fieldrules.js`` with ``static/fields.json``, run in node), the contract's
 vectorised parser (``parse_column``, what ``slipwise analyze`` switches to) and its scalar
-one (``parse_value``). ``slipwise analyze`` itself is the last test: rows where it decides
-differently today are marked xfail until it calls the contract's parser.
+one (``parse_value``). ``slipwise analyze`` itself is the last test, as a subprocess; the table's
+last column records the rows where release 2's analyze decided differently (it has since been
+switched to the contract's parser, so every row must now agree).
 
 The expected decisions are the cell rules of ``slipwise.contract.cells`` (its docstring has them
 in words); each row says why where it is not obvious.
@@ -28,9 +29,8 @@ from tests.service.conftest import app, database, static_dir, tech  # noqa: F401
 
 ROOT = Path(__file__).resolve().parents[2]
 REFUSED = object()
-ANALYZE_DIFFERS = "analyze switches to the contract parser after the engine split"
 
-# (id, field, raw, expected value or REFUSED, analyze decides differently today)
+# (id, field, raw, expected value or REFUSED, release 2's analyze decided differently)
 TABLE = [
     ("decimal comma", "frequency_hz", "50,0", 50.0, True),
     ("surrounding spaces", "frequency_hz", " 50 ", 50.0, False),
@@ -176,10 +176,8 @@ def analyze_decisions(tmp_path_factory):
     return dict(zip(IDS, frame[["error", "error_field"]].to_dict("records")))
 
 
-@pytest.mark.parametrize("name, field, raw, expected, analyze_differs", [
-    pytest.param(*row, marks=pytest.mark.xfail(strict=False, reason=ANALYZE_DIFFERS)) if row[4] else row
-    for row in TABLE], ids=IDS)
-def test_analyze(analyze_decisions, name, field, raw, expected, analyze_differs):
+@pytest.mark.parametrize("name, field, raw, expected, analyze_differed", TABLE, ids=IDS)
+def test_analyze(analyze_decisions, name, field, raw, expected, analyze_differed):
     got = analyze_decisions[name]
     if expected is REFUSED:
         assert got["error_field"] == field, got

@@ -44,6 +44,7 @@ AMBIGUOUS_PATTERN = r"^[+-]?[1-9][0-9]{0,2},[0-9]{3}$"
 _NUMBER = re.compile(NUMBER_PATTERN)
 _AMBIGUOUS = re.compile(AMBIGUOUS_PATTERN)
 SHOWN_CHARS = 40   # of a refused value, quoted back in a message
+_SMALL = 64        # rows below which per-value Python beats pandas' set-up cost
 
 
 def _show(value: Any) -> str:
@@ -221,6 +222,12 @@ def parse_value(field: str, raw: Any) -> Any:
 def _distinct(raw) -> tuple[np.ndarray, list]:
     """(code per row, distinct values): code -1 for a missing cell (None or NaN)."""
     arr = np.asarray(raw, dtype=object)
+    if len(arr) <= _SMALL:
+        # one API record or a short file: a dict beats pandas' set-up cost
+        index: dict = {}
+        codes = np.array([-1 if v is None or (isinstance(v, float) and math.isnan(v))
+                          else index.setdefault((type(v), v), len(index)) for v in arr], dtype=np.int64)
+        return codes, [v for _, v in index]
     codes, uniques = pd.factorize(pd.Series(arr, dtype=object), use_na_sentinel=True)
     return codes, list(uniques)
 
