@@ -16,7 +16,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import slipwise.web.misc as misc_views
+import slipwise.services.readings as reading_services
 from slipwise.contract import DESIGNS, DRIVEN_LOADS, FLAG_CODES, INPUT_FIELDS, INTEGER_RESULT_COLUMNS, RESULT_COLUMNS
 from slipwise.contract import TEXT_RESULT_COLUMNS
 from tests.service.conftest import app, database, static_dir, tech  # noqa: F401  (fixtures)
@@ -104,13 +104,13 @@ def _finite(value) -> bool:
 def engine_results(monkeypatch):
     """The engine's results on their way to JSON, as the view got them."""
     seen = []
-    real = misc_views.interpret
+    real = reading_services.interpret    # POST /interpret goes through the readings service
 
-    def recording(record):
-        result = real(record)
+    def recording(record, thresholds=None):
+        result = real(record, thresholds)
         seen.append(result)
         return result
-    monkeypatch.setattr(misc_views, "interpret", recording)
+    monkeypatch.setattr(reading_services, "interpret", recording)
     return seen
 
 

@@ -1,5 +1,8 @@
 """IEC 60034-30-1 efficiency classes (IE1 to IE4) of line-operated cage induction motors.
 
+(Over 400 lines on purpose: most of it is the standard's tables, kept in one
+place beside the rules that read them, so a reviewer checks a cell where it is used.)
+
 The standard gives, for 2, 4, 6 and 8 poles and rated outputs from 0.12 kW to
 1000 kW, the minimum nominal full-load efficiency of each class, in one table
 for 50 Hz and one for 60 Hz motors. This module carries those tables and the
