@@ -7,6 +7,7 @@ spreadsheets and scripts depend on them. Extend, never rename.
 * :mod:`.cells` - what a raw value may look like, as a CSV cell or a JSON value (``parse_value``,
   ``parse_column``);
 * :mod:`.models` - the API's request models (pydantic), built from the declaration;
+* :mod:`.responses` - the API's response models (pydantic), built from the declaration;
 * :mod:`.page` - the declaration as the page reads it (``static/fields.json``).
 """
 

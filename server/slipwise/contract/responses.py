@@ -1,0 +1,241 @@
+"""The API's response models (pydantic v2), built from the declaration; their JSON schemas are the OpenAPI
+document's response schemas.
+
+The engine's result has one field per :data:`RESULT_COLUMNS` entry, typed by the declaration's column sets
+(text, integer, else a number; all nullable), so a column added there reaches the document with no edit here.
+The models forbid keys they do not name: ``tests/service/test_response_models.py`` validates every route's real
+answer against its documented model, and the fuzzing's schema-conformance check does the same over HTTP, so
+the document cannot drift from what the handlers return.
+"""
+
+from __future__ import annotations
+
+from datetime import datetime
+from typing import Any, Literal, Optional
+
+from pydantic import BaseModel, ConfigDict, Field, create_model
+from pydantic.json_schema import models_json_schema
+
+from .fields import (CHOICE_FIELDS, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS, NUMBER_FIELDS,
+                     READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_RESULT_COLUMNS)
+
+REF_TEMPLATE = "#/components/schemas/{model}"
+
+
+class _Response(BaseModel):
+    # strict: an answer is what the handler wrote, not something pydantic could coerce into shape
+    model_config = ConfigDict(extra="forbid", strict=True)
+
+
+def _declared(name: str) -> tuple[Any, Any]:
+    """A nameplate or reading field as a stored record shows it: the declared type, null where not given."""
+    if name in CHOICE_FIELDS:
+        spec = CHOICE_FIELDS[name]
+        kind: Any = Literal[tuple(spec.choices)]  # type: ignore[valid-type]
+        text = spec.help
+    else:
+        spec = NUMBER_FIELDS[name]
+        kind = int if spec.integer else float
+        text = (spec.help + "; " if spec.help else "") + f"[{spec.unit or '-'}]"
+    return Optional[kind], Field(description=text)
+
+
+def _fields(names) -> dict:
+    return {name: _declared(name) for name in names}
+
+
+# --------------------------------------------------------------------------- the engine's result
+class Finding(_Response):
+    flag: Optional[str] = Field(description="the flag code the words belong to")
+    text: str
+    caution: Optional[str] = Field(description="what not to do until the cause is found, where one applies")
+
+
+FlagCode = Literal[FLAG_CODES]  # type: ignore[valid-type]
+
+
+def _column(name: str) -> tuple[Any, Any]:
+    if name == "flags":
+        return list[FlagCode], Field(description="flag codes raised by this reading")
+    if name == "findings":
+        return list[Finding], Field(description="the words of each flag: finding and caution")
+    kind = str if name in TEXT_RESULT_COLUMNS else int if name in INTEGER_RESULT_COLUMNS else float
+    return Optional[kind], ...
+
+
+Result = create_model(
+    "Result", __base__=_Response, __doc__="The engine's result: the contract's columns (units in the names); null "
+    "where a value does not apply or could not be estimated.", **{c: _column(c) for c in RESULT_COLUMNS})
+
+
+# --------------------------------------------------------------------------- readings and reviews
+class Review(_Response):
+    decision: Literal[REVIEW_DECISIONS]  # type: ignore[valid-type]
+    comment: str
+    reviewer: str
+    reviewed_at: datetime
+
+
+ReadingInputs = create_model(
+    "ReadingInputs", __base__=_Response, __doc__="the reading fields as interpreted",
+    **_fields(f for f in READING_FIELDS if f != "taken_at"),
+    taken_at=(Optional[str], Field(description=TAKEN_AT_HELP)))
+
+
+class Reading(_Response):
+    id: int
+    client_id: str = Field(json_schema_extra={"format": "uuid"})
+    motor_id: int
+    motor_revision: int
+    motor_revision_id: int
+    site: str
+    tag: str
+    technician: str
+    technician_name: str
+    taken_at: str
+    received_at: datetime
+    engine_version: str
+    supersedes: Optional[int]
+    superseded_by: Optional[int]
+    review: Optional[Review] = Field(description="the latest review; null before any")
+    reviews: list[Review] = Field(None, description="every review, oldest first (GET /readings/{id} only)")
+    inputs: ReadingInputs
+    result: Result  # type: ignore[valid-type]
+
+
+class ReadingList(_Response):
+    count: int
+    readings: list[Reading]
+
+
+class ReviewCreated(_Response):
+    id: int
+    reading_id: int
+    decision: Literal[REVIEW_DECISIONS]  # type: ignore[valid-type]
+    comment: str
+    reviewer: str
+    reviewed_at: datetime
+    reading: Reading
+
+
+# --------------------------------------------------------------------------- motors
+_NAMEPLATE = _fields(f for f in NAMEPLATE_FIELDS if f != "tag")
+_PLACE = {"location": (str, ...), "description": (str, ...)}
+
+Motor = create_model(
+    "Motor", __base__=_Response, __doc__="a motor with its current nameplate revision",
+    id=(int, ...), site=(str, ...), tag=(str, ...), **_PLACE, **_NAMEPLATE,
+    revision=(int, ...), revision_id=(int, ...), updated_at=(datetime, ...), updated_by=(Optional[str], ...))
+MotorRevision = create_model(
+    "MotorRevision", __base__=_Response, __doc__="one nameplate revision, as written then",
+    **_PLACE, **_NAMEPLATE, revision=(int, ...), revision_id=(int, ...), created_at=(datetime, ...),
+    created_by=(Optional[str], ...))
+MotorDetail = create_model(
+    "MotorDetail", __base__=Motor, __doc__="a motor with every nameplate revision, oldest first",
+    revisions=(list[MotorRevision], ...))  # type: ignore[valid-type]
+
+
+class MotorList(_Response):
+    count: int
+    motors: list[Motor]  # type: ignore[valid-type]
+
+
+# --------------------------------------------------------------------------- accounts, health, audit, errors
+class User(_Response):
+    id: int
+    username: str
+    full_name: str
+    role: Literal["technician", "supervisor"]
+    active: bool
+    created_at: datetime
+
+
+class Session(_Response):
+    user: User
+    csrf_token: Optional[str] = Field(description="send as X-CSRF-Token on writes (null with a bearer token)")
+    expires_at: datetime = Field(None, description="when the session ends (cookie sessions)")
+    thresholds: dict[str, float] = Field(description="flag thresholds in force (see slipwise.engine.Thresholds)")
+
+
+class Health(_Response):
+    status: Literal["ok", "unavailable"]
+    engine_version: str
+    schema_version: int = Field(None, description="absent when the database is down")
+    database: Literal["sqlite", "postgresql"] = Field(None, description="absent when the database is down")
+
+
+class AuditEntry(_Response):
+    id: int
+    at: datetime
+    actor: str
+    action: str
+    object_type: str
+    object_id: Optional[int]
+    detail: dict[str, Any]
+
+
+class AuditList(_Response):
+    count: int
+    entries: list[AuditEntry]
+
+
+class ErrorDetail(_Response):
+    code: str = Field(description="machine-readable, e.g. invalid_input, not_found")
+    message: str = Field(description="for people: names the field and allowed range")
+    field: Optional[str]
+
+
+class Error(_Response):
+    error: ErrorDetail
+
+
+RESPONSE_MODELS = {m.__name__: m for m in (Error, Session, Motor, MotorDetail, MotorList, Reading, ReadingList,
+                                           ReviewCreated, Result, Health, AuditList)}
+
+
+# --------------------------------------------------------------------------- JSON Schema -> OpenAPI 3.0
+def _openapi30(node: Any) -> Any:
+    """Pydantic's JSON Schema (2020-12) in OpenAPI 3.0's words: ``anyOf [X, null]`` becomes ``X`` with
+    ``nullable`` (a ``$ref`` wrapped in ``allOf``), titles and null defaults go."""
+    if isinstance(node, list):
+        return [_openapi30(v) for v in node]
+    if not isinstance(node, dict):
+        return node
+    out = {k: (_openapi30(v) if k != "properties" else {n: _openapi30(p) for n, p in v.items()})
+           for k, v in node.items() if k != "title" and not (k == "default" and v is None)}
+    options = out.get("anyOf")
+    if options and {"type": "null"} in options and len(options) == 2:
+        (inner,) = [o for o in options if o != {"type": "null"}]
+        del out["anyOf"]
+        inner = {"allOf": [inner]} if "$ref" in inner else dict(inner)
+        if "enum" in inner:
+            inner["enum"] = [*inner["enum"], None]
+        out = {**inner, **out, "nullable": True}
+    if "const" in out:
+        out["enum"] = [out.pop("const")]
+    return out
+
+
+# written in place where used rather than as components of their own (a reader sees the nested shape at once)
+INLINE = ("ErrorDetail", "ReadingInputs", "MotorRevision", "AuditEntry")
+
+
+def _inline(node: Any, defs: dict) -> Any:
+    if isinstance(node, list):
+        return [_inline(v, defs) for v in node]
+    if not isinstance(node, dict):
+        return node
+    name = node.get("$ref", "").rsplit("/", 1)[-1]
+    if name in INLINE:
+        return {**_inline(defs[name], defs), **{k: v for k, v in node.items() if k != "$ref"}}
+    return {k: _inline(v, defs) for k, v in node.items()}
+
+
+def response_schemas() -> dict[str, dict]:
+    """Every response model's schema and those it refers to, keyed by name, for ``components/schemas``.
+
+    Pydantic's ``$defs`` are hoisted: the references already point at ``#/components/schemas/``.
+    """
+    _, top = models_json_schema([(m, "validation") for m in RESPONSE_MODELS.values()], ref_template=REF_TEMPLATE)
+    defs = {name: _openapi30(schema) for name, schema in top["$defs"].items()}
+    return {name: _inline(schema, defs) for name, schema in defs.items() if name not in INLINE}
