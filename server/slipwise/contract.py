@@ -123,9 +123,18 @@ RESULT_COLUMNS: tuple[str, ...] = (
     "predicted_current_a", "predicted_power_factor",
     "breakdown_torque_now_pct", "starting_margin", "operating_side",
     "error_field", "engine_version",
+    # extensions: verdicts on the band (engine/verdicts.py)
+    "verdict", "breakdown_margin_low", "limit_flags",
+    "load_state", "breakdown_state", "supply_state", "voltage_unbalance_state", "current_unbalance_state",
+    "starting_state",
 )
+#: The verdict words of the ``verdict`` column and the state words of the ``*_state`` columns.
+VERDICT_WORDS: tuple[str, ...] = ("sound", "watch", "act", "retake")
+STATE_WORDS: tuple[str, ...] = ("clear", "at_limit", "beyond")
 TEXT_RESULT_COLUMNS = frozenset({"efficiency_class", "supply_zone", "flags", "findings", "error",
-                                 "operating_side", "error_field", "engine_version"})
+                                 "operating_side", "error_field", "engine_version",
+                                 "verdict", "limit_flags", "load_state", "breakdown_state", "supply_state",
+                                 "voltage_unbalance_state", "current_unbalance_state", "starting_state"})
 INTEGER_RESULT_COLUMNS = frozenset({"poles"})
 
 FLAG_CODES: tuple[str, ...] = (
