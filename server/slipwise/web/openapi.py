@@ -244,7 +244,10 @@ def document() -> dict:
             "reviewed_at": {"type": "string", "format": "date-time"}, "reading": _ref("Reading")}},
         "Finding": {"type": "object", "properties": {"flag": {"type": "string", "nullable": True},
                                                      "text": {"type": "string"},
-                                                     "caution": {"type": "string", "nullable": True}}},
+                                                     "caution": {"type": "string", "nullable": True},
+                                                     "state": {"type": "string", "enum": ["beyond", "at_limit"],
+                                                               "description": "beyond: the code is in flags; "
+                                                                              "at_limit: in limit_flags"}}},
         "Result": _result_schema(),
         "InterpretInput": {"type": "object", "additionalProperties": False,
                            "required": ["frequency_hz", "speed_rpm"],
