@@ -315,7 +315,8 @@ def main() -> None:
         print(f"{c.id:28} {r['verdict']:6} {truth['load_pct']:6.1f} {r['load_pct']:6.1f} "
               f"{r['load_low_pct']:6.1f}-{r['load_high_pct']:6.1f} {'yes' if cover else 'NO':>5} "
               f"{truth['breakdown_margin']:6.2f} {r['breakdown_margin']:6.2f} {margin_low(r):6.2f}  "
-              f"{','.join(sorted(got)) or '-'} {diff}")
+              f"{','.join(sorted(got)) or '-'} {diff}"
+              + (f"  at the limit: {r['limit_flags'].replace(';', ',')}" if r["limit_flags"] else ""))
 
 
 if __name__ == "__main__":
