@@ -13,6 +13,8 @@ const PRECACHE = [
   "/js/api.js",
   "/js/dom.js",
   "/js/fields.js",
+  "/js/fieldrules.js",
+  "/fields.json",
   "/js/outbox.js",
   "/js/provisional.js",
   "/js/result.js",

@@ -1,4 +1,4 @@
-"""``slipwise``: the command line. Parses options, calls the store and the web app, prints.
+"""``slipwise``: the command line. Parses options, calls the services and the web app, prints.
 
 Subcommands: ``serve``, ``demo``, ``user add``, ``user list``, ``token create``,
 ``db upgrade``, ``db backup`` and ``analyze`` (in ``slipwise.cli_analyze``).
@@ -100,20 +100,16 @@ def _read_password(args) -> str:
 
 
 def cmd_user_add(args) -> int:
-    from slipwise.store import accounts
+    from slipwise.services import accounts
     password = _read_password(args)
-    db = _database(args)
-    with db.write() as conn:
-        user = accounts.add_user(conn, args.name, args.role, password, args.full_name or "")
+    user = accounts.add_user(_database(args), args.name, args.role, password, args.full_name or "")
     print(f"added {user['username']} ({user['role']})")
     return 0
 
 
 def cmd_user_list(args) -> int:
-    from slipwise.store import accounts
-    db = _database(args)
-    with db.read() as conn:
-        users = accounts.list_users(conn)
+    from slipwise.services import accounts
+    users = accounts.list_users(_database(args))
     rows = [("username", "role", "full name", "active", "created")]
     rows += [(u["username"], u["role"], u["full_name"], "yes" if u["active"] else "no", u["created_at"][:19] + "Z")
              for u in users]
@@ -124,10 +120,8 @@ def cmd_user_list(args) -> int:
 
 
 def cmd_token_create(args) -> int:
-    from slipwise.store import accounts
-    db = _database(args)
-    with db.write() as conn:
-        token = accounts.create_token(conn, args.name, args.label or "")
+    from slipwise.services import accounts
+    token = accounts.create_token(_database(args), args.name, args.label or "")
     print(f"bearer token for {args.name} (shown once; only its hash is stored):", file=sys.stderr)
     print(token)
     return 0

@@ -2,7 +2,7 @@
 
 import { api, ApiError, NetworkError } from "./api.js";
 import { $, clear, fmt, h, localDate, localIso, showTime, uuid } from "./dom.js";
-import { CHOICE_WORDS, crossCheck, FIELD, fmtRange, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, parseField, READING_NUMBERS } from "./fields.js";
+import { CHOICE_WORDS, crossCheck, FIELD, fmtRange, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, parseField, parseText, READING_NUMBERS, TEXT_FIELDS } from "./fields.js";
 import * as outbox from "./outbox.js";
 import { provisional } from "./provisional.js";
 import { provisionalBlock, resultBlocks, reviewWord, SAFETY_NOTE } from "./result.js";
@@ -159,9 +159,10 @@ export async function renderMotorForm(el) {
     const body = { site: site.input.value.trim(), tag: tag.input.value.trim(), location: location.input.value.trim(),
       description: description.input.value.trim() };
     let first = null;
-    for (const t of [site, tag]) {
-      t.error.textContent = t.input.value.trim() ? "" : "Needed.";
-      if (!t.input.value.trim() && !first) first = t.input;
+    for (const [name, t] of [["site", site], ["tag", tag]]) {
+      const r = parseText(TEXT_FIELDS[name], t.input.value); // the contract's text rules (tag: no hidden characters)
+      t.error.textContent = !r.value ? "Needed." : (r.error || "");
+      if ((!r.value || r.error) && !first) first = t.input;
     }
     for (const [name, fld] of Object.entries(nums)) {
       if ((name === "rated_power_kw" && unit !== "kw") || (name === "rated_power_hp" && unit !== "hp")) continue;

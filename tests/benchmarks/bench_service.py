@@ -40,7 +40,7 @@ sys.path.insert(0, str(REPO / "server"))
 from slipwise.contract import NAMEPLATE_FIELDS  # noqa: E402
 from slipwise.engine import interpret_records  # noqa: E402
 from slipwise.store import Database, sqlite_url  # noqa: E402
-from slipwise.store.readings import engine_record, to_json  # noqa: E402
+from slipwise.services.records import engine_record, to_json  # noqa: E402
 from slipwise.store.schema import motor_revisions, reading_flags, readings  # noqa: E402
 from slipwise.store.types import utcnow  # noqa: E402
 

@@ -324,7 +324,7 @@ def test_numeric_strings_are_numbers(tech, motor, value, stored):
 
 
 # --- path traversal in static paths ----------------------------------------------------------------
-ENGINE_MARK = "``slipwise``: the command line. Parses options, calls the store and the web app, prints."
+ENGINE_MARK = "``slipwise``: the command line. Parses options, calls the services and the web app, prints."
 TRAVERSALS = {
     "dot-dot": "/static/../server/slipwise/cli.py",
     "dot-dot at root": "/../server/slipwise/cli.py",

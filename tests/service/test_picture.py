@@ -10,14 +10,14 @@ import numpy as np
 import slipwise.web.readings as views
 from slipwise import contract, engine
 from slipwise.physics import load
-from slipwise.store import readings as store_readings
-from slipwise.web import interpretation
+from slipwise.services import interpretation
+from slipwise.services import readings as reading_services
 
 
 def test_svg_picture_is_drawn_once_and_cached(app, tech, reading, monkeypatch):
     calls = []
     real = views.torque_speed
-    monkeypatch.setattr(views, "torque_speed", lambda record: calls.append(record) or real(record))
+    monkeypatch.setattr(views, "torque_speed", lambda record, *rest: calls.append(record) or real(record, *rest))
     url = f"/api/v1/readings/{reading['id']}/torque-speed.svg"
     first = tech.get(url)
     assert first.status_code == 200
@@ -57,8 +57,7 @@ def test_picture_draws_the_stored_result_not_a_new_interpretation(app, tech, rea
         return load.Estimate(*(1.4 * np.asarray(x) for x in fused)), consistent, outlier
 
     monkeypatch.setattr(load, "fuse", heavier)
-    with app.extensions["slipwise"].db.read() as conn:
-        record, _ = store_readings.record_for_picture(conn, reading["id"])
+    record, _ = reading_services.picture_record(app.extensions["slipwise"].db, reading["id"])
     now = engine.torque_speed_curve(record)
     rated = now["rated_torque_nm"]
     expected = stored["result"]["torque_pct"] / 100.0 * rated

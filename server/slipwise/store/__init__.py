@@ -2,8 +2,8 @@
 
 Modules: ``database`` (connections; the only dialect-aware code), ``schema``
 (tables), ``migrations`` (Alembic, run from code; scripts in ``alembic/``), ``accounts``, ``motors``,
-``readings``, ``audit`` (the data operations), ``validation`` (request values
-to contract types).
+``readings``, ``audit`` (the data operations). Request values are checked before
+they reach the store, by the contract (``slipwise.contract``).
 """
 
 from .database import Database, normalise_url, sqlite_url

@@ -5,7 +5,7 @@ from __future__ import annotations
 import json
 from typing import Any, Mapping
 
-from sqlalchemy import Connection, select
+from sqlalchemy import Connection, RowMapping, select
 
 from .schema import audit_log, users
 from .types import utcnow
@@ -20,17 +20,13 @@ def record(conn: Connection, actor: Mapping[str, Any] | None, action: str, objec
         object_id=object_id, detail=json.dumps(dict(detail or {}), sort_keys=True, default=str)))
 
 
-def list_entries(conn: Connection, *, date: str | None = None, limit: int = 1000) -> list[dict]:
-    q = select(audit_log).order_by(audit_log.c.id.desc()).limit(limit)
-    rows = []
-    for r in conn.execute(q).mappings():
-        at = r["at"]
-        if date and at.date().isoformat() != date:
-            continue
-        rows.append({"id": r["id"], "at": at.isoformat(), "actor": r["actor"], "action": r["action"],
-                     "object_type": r["object_type"], "object_id": r["object_id"],
-                     "detail": json.loads(r["detail"])})
-    return rows
+def entry_rows(conn: Connection, *, date: str | None = None, limit: int = 1000) -> list[RowMapping]:
+    """The newest ``limit`` entries, newest first; of those, the ones made on ``date`` (UTC) when given.
+
+    ``detail`` is the stored JSON text.
+    """
+    rows = conn.execute(select(audit_log).order_by(audit_log.c.id.desc()).limit(limit)).mappings().all()
+    return [r for r in rows if r["at"].date().isoformat() == date] if date else rows
 
 
-__all__ = ["record", "list_entries", "users"]
+__all__ = ["record", "entry_rows", "users"]

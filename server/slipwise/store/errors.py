@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from slipwise.contract.errors import FieldError
+
 
 class StoreError(Exception):
     """Base class: a request the store refuses, with the field it concerns."""
@@ -22,8 +24,17 @@ class ConflictError(StoreError):
     code = "conflict"
 
 
-class ValidationError(StoreError):
+class ValidationError(StoreError, FieldError):
+    """A value refused by the store itself (the contract's refusals are :class:`FieldError`)."""
+
     code = "invalid_input"
+
+
+class DuplicateError(ConflictError):
+    """An insert met a unique index (a replayed client_id, a tag taken, a reading superseded twice).
+
+    The caller decides what the duplicate means; nothing of the transaction is kept.
+    """
 
 
 class UnavailableError(Exception):

@@ -1,14 +1,18 @@
-"""Sites and motors. An edited nameplate is a new revision; old revisions stay."""
+"""Sites and motors. An edited nameplate is a new revision; old revisions stay.
+
+Rows in, rows out: the rules (a nameplate the engine can use, a revision only
+when something changed, optimistic locking) are in ``slipwise.services.motors``.
+"""
 
 from __future__ import annotations
 
+from datetime import datetime
 from typing import Any, Mapping
 
-from sqlalchemy import Connection, func, select
+from sqlalchemy import Connection, RowMapping, func, select
 from sqlalchemy.exc import IntegrityError
 
-from . import audit
-from .errors import ConflictError, NotFoundError
+from .errors import DuplicateError
 from .schema import REVISION_NAMEPLATE_FIELDS, motor_revisions, motors, sites, users
 from .types import utcnow
 
@@ -48,76 +52,52 @@ def _motor_select():
             .outerjoin(users, users.c.id == motor_revisions.c.created_by))
 
 
-def _motor_dict(row) -> dict[str, Any]:
-    d = {"id": row["id"], "site": row["site"], "tag": row["tag"]}
-    for f in REVISION_FIELDS:
-        d[f] = row[f]
-    d.update(revision=row["revision"], revision_id=row["revision_id"], updated_at=row["updated_at"].isoformat(),
-             updated_by=row["updated_by"])
-    return d
-
-
-def list_motors(conn: Connection, site: str | None = None) -> list[dict]:
+def motor_rows(conn: Connection, site: str | None = None) -> list[RowMapping]:
+    """Every motor with its current revision, by site and tag."""
     q = _motor_select().order_by(sites.c.name, motors.c.tag)
     if site:
         q = q.where(sites.c.name == site)
-    return [_motor_dict(r) for r in conn.execute(q).mappings()]
+    return conn.execute(q).mappings().all()
 
 
-def get_motor(conn: Connection, motor_id: int, with_history: bool = False) -> dict:
-    row = conn.execute(_motor_select().where(motors.c.id == motor_id)).mappings().first()
-    if row is None:
-        raise NotFoundError(f"no motor with id {motor_id}", "motor_id")
-    d = _motor_dict(row)
-    if with_history:
-        q = (select(motor_revisions, users.c.username.label("created_by_name"))
-             .outerjoin(users, users.c.id == motor_revisions.c.created_by)
-             .where(motor_revisions.c.motor_id == motor_id).order_by(motor_revisions.c.revision))
-        d["revisions"] = [
-            {"revision": r["revision"], "revision_id": r["id"], "created_at": r["created_at"].isoformat(),
-             "created_by": r["created_by_name"], **{f: r[f] for f in REVISION_FIELDS}}
-            for r in conn.execute(q).mappings()]
-    return d
+def motor_row(conn: Connection, motor_id: int) -> RowMapping | None:
+    """One motor with its current revision (id, tag, site, revision_id, revision, fields, updated_at/by)."""
+    return conn.execute(_motor_select().where(motors.c.id == motor_id)).mappings().first()
 
 
+def revision_rows(conn: Connection, motor_id: int) -> list[RowMapping]:
+    """Every revision of a motor, oldest first, with ``created_by_name``."""
+    q = (select(motor_revisions, users.c.username.label("created_by_name"))
+         .outerjoin(users, users.c.id == motor_revisions.c.created_by)
+         .where(motor_revisions.c.motor_id == motor_id).order_by(motor_revisions.c.revision))
+    return conn.execute(q).mappings().all()
 
-def create_motor(conn: Connection, actor: dict | None, site: str, tag: str, fields: Mapping[str, Any]) -> dict:
-    """``fields``: validated nameplate fields plus location and description."""
-    sid = site_id(conn, site, create=True)
-    now = utcnow()
+
+def latest_revision(conn: Connection, motor_id: int) -> RowMapping | None:
+    """The current revision row of a motor plus ``motor_tag``; None when there is no such motor."""
+    return conn.execute(select(motor_revisions, motors.c.tag.label("motor_tag"))
+                        .join(motors, motors.c.id == motor_revisions.c.motor_id)
+                        .where(motor_revisions.c.motor_id == motor_id)
+                        .order_by(motor_revisions.c.revision.desc()).limit(1)).mappings().first()
+
+
+def insert_motor(conn: Connection, site: int, tag: str, created_by: int | None, created_at: datetime) -> int:
+    """Insert a motor row; DuplicateError when the site already has the tag (the transaction stays usable)."""
     try:
         with conn.begin_nested():
-            mid = conn.execute(motors.insert().values(site_id=sid, tag=tag, created_at=now,
-                                                      created_by=actor["id"] if actor else None)
-                               ).inserted_primary_key[0]
+            return conn.execute(motors.insert().values(site_id=site, tag=tag, created_at=created_at,
+                                                       created_by=created_by)).inserted_primary_key[0]
     except IntegrityError:
-        raise ConflictError(f"site {site} already has a motor tagged {tag}", "tag") from None
-    conn.execute(motor_revisions.insert().values(motor_id=mid, revision=1, created_at=now,
-                                                 created_by=actor["id"] if actor else None,
-                                                 **{f: fields.get(f) for f in REVISION_FIELDS}))
-    audit.record(conn, actor, "motor.create", "motor", mid, {"site": site, "tag": tag})
-    return get_motor(conn, mid)
+        raise DuplicateError(f"the site already has a motor tagged {tag}", "tag") from None
 
 
-def revise_motor(conn: Connection, actor: dict | None, motor_id: int, fields: Mapping[str, Any],
-                 expected_revision: int | None = None) -> tuple[dict, bool]:
-    """Add a revision when the fields differ from the current one. Returns (motor, changed)."""
-    current = get_motor(conn, motor_id)
-    if expected_revision is not None and expected_revision != current["revision"]:
-        raise ConflictError(f"motor {motor_id} is at revision {current['revision']}, not {expected_revision}; "
-                            "reload it and apply the change again", "revision")
-    new = {f: fields.get(f) for f in REVISION_FIELDS}
-    changed = {f: [current[f], new[f]] for f in REVISION_FIELDS if current[f] != new[f]}
-    if not changed:
-        return current, False
+def insert_revision(conn: Connection, motor_id: int, revision: int, fields: Mapping[str, Any],
+                    created_by: int | None, created_at: datetime) -> int:
+    """Insert revision ``revision`` of a motor; DuplicateError when that number exists already."""
     try:
         with conn.begin_nested():
-            conn.execute(motor_revisions.insert().values(
-                motor_id=motor_id, revision=current["revision"] + 1, created_at=utcnow(),
-                created_by=actor["id"] if actor else None, **new))
+            return conn.execute(motor_revisions.insert().values(
+                motor_id=motor_id, revision=revision, created_at=created_at, created_by=created_by,
+                **{f: fields.get(f) for f in REVISION_FIELDS})).inserted_primary_key[0]
     except IntegrityError:
-        raise ConflictError(f"motor {motor_id} was changed by someone else at the same time; reload it",
-                            "revision") from None
-    audit.record(conn, actor, "motor.revise", "motor", motor_id,
-                 {"revision": current["revision"] + 1, "changed": changed})
-    return get_motor(conn, motor_id), True
+        raise DuplicateError(f"motor {motor_id} already has revision {revision}", "revision") from None

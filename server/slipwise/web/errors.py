@@ -10,6 +10,7 @@ from sqlalchemy.exc import InterfaceError, OperationalError
 from sqlalchemy.exc import TimeoutError as PoolTimeoutError
 from werkzeug.exceptions import HTTPException
 
+from slipwise.contract.errors import FieldError
 from slipwise.store.errors import (ConflictError, NotFoundError, SchemaError, StoreError, UnavailableError,
                                  ValidationError)
 
@@ -68,6 +69,10 @@ def register(app: Flask) -> None:
     def _store(e: StoreError):
         status = next((s for cls, s in _STORE_STATUS.items() if isinstance(e, cls)), 400)
         return error_response(status, e.code, e.message, e.field)
+
+    @app.errorhandler(FieldError)
+    def _field(e: FieldError):
+        return error_response(400, e.code, e.message, e.field)
 
     @app.errorhandler(SchemaError)
     def _schema(e: SchemaError):

@@ -34,7 +34,7 @@ from flask import Blueprint, Response
 
 from slipwise.contract import NAMEPLATE_FIELDS, READING_FIELDS, RESULT_COLUMNS
 from slipwise.engine.records import cautions_cell, neutralise, result_cells
-from slipwise.store import readings as store_readings
+from slipwise.services import readings as services
 
 from .auth import requires
 from .params import date_param, query, text_param
@@ -99,14 +99,11 @@ def csv_chunks(rows: Iterable[Mapping[str, Any]]) -> Iterator[str]:
 def export_csv():
     args = query(("date", "site"))
     filters = dict(date=date_param(args), site=text_param(args, "site"))
-    db = state().db
-
-    def generate():
-        with db.read() as conn:
-            yield from csv_chunks(store_readings.iter_export_rows(conn, **filters))
+    # generators: the query runs, and the rows are written, while the response streams
+    chunks = csv_chunks(services.export_rows(state().db, **filters))
 
     name = "slipwise-record" + (f"-{filters['date']}" if filters["date"] else "") + ".csv"
-    resp = Response(generate(), mimetype="text/csv")
+    resp = Response(chunks, mimetype="text/csv")
     resp.headers["Content-Type"] = "text/csv; charset=utf-8"
     resp.headers["Content-Disposition"] = f'attachment; filename="{name}"'
     return resp

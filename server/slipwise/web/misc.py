@@ -6,16 +6,18 @@ import json
 
 from flask import Blueprint, Response, jsonify
 
-from slipwise.contract import ENGINE_VERSION, INPUT_FIELDS
-from slipwise.store import audit, validation
-from slipwise.store import motors as store_motors
-from slipwise.store.readings import engine_record, to_json
+from slipwise.contract import ENGINE_VERSION
+from slipwise.contract.models import READING_NAMES, InterpretInput, parse_body, taken_at
+from slipwise.services import audit as audit_services
+from slipwise.services import readings as services
+from slipwise.services.records import to_json
+from slipwise.store.schema import REVISION_NAMEPLATE_FIELDS
 from slipwise.store.types import utcnow
 
 from .auth import requires
-from .interpretation import interpret
 from .openapi import document
 from .params import date_param, int_param, query
+from .render import audit_entry_dict
 from .security import json_body
 from .state import state
 
@@ -37,34 +39,27 @@ def health():
 @bp.post("/interpret")
 @requires("technician")
 def interpret_without_storing():
+    st = state()
     body = json_body()
-    validation.unknown_fields(body, frozenset(INPUT_FIELDS) | {"motor_id"})
-    reading = validation.reading(body)
-    taken_at, _, _ = validation.taken_at(body.get("taken_at"), utcnow())
-    if body.get("motor_id") is not None:
-        motor_id = validation.identifier("motor_id", body["motor_id"])
-        nameplate_keys = set(INPUT_FIELDS) - set(reading) - {"taken_at"}
-        given = sorted(k for k in body if k in nameplate_keys)
-        if given:
-            from .errors import ApiError
-            raise ApiError(400, "invalid_input", "give motor_id or the nameplate fields, not both", given[0])
-        with state().db.read() as conn:
-            motor = store_motors.get_motor(conn, motor_id)
-        record = engine_record(motor, motor["tag"], reading, taken_at)
+    p = parse_body(InterpretInput, body)   # motor_id or a nameplate, not both (a blank field is no field)
+    reading = {name: p[name] for name in READING_NAMES}
+    when, _, _ = taken_at(p["taken_at"], utcnow())
+    if p["motor_id"] is not None:
+        result = services.interpret_reading(st.db, reading, when, motor_id=p["motor_id"], thresholds=st.thresholds)
     else:
         # the document makes tag optional here: nothing is stored, so an untagged check is fine
-        tag = "(untagged)" if validation.blank(body.get("tag")) else validation.tag(body.get("tag"))
-        record = engine_record(validation.nameplate(body) | {"location": "", "description": ""}, tag, reading,
-                               taken_at)
-    return Response(to_json(interpret(record)), mimetype="application/json")
+        nameplate = {name: p[name] for name in REVISION_NAMEPLATE_FIELDS}
+        result = services.interpret_reading(st.db, reading, when, nameplate=nameplate, tag=p["tag"] or "(untagged)",
+                                            thresholds=st.thresholds)
+    return Response(to_json(result), mimetype="application/json")
 
 
 @bp.get("/audit")
 @requires("supervisor")
 def audit_trail():
     args = query(("date", "limit"))
-    with state().db.read() as conn:
-        entries = audit.list_entries(conn, date=date_param(args), limit=int_param(args, "limit", 1, 10000, 1000))
+    entries = [audit_entry_dict(r) for r in audit_services.audit_trail(
+        state().db, date=date_param(args), limit=int_param(args, "limit", 1, 10000, 1000))]
     return jsonify({"entries": entries, "count": len(entries)})
 
 

@@ -8,9 +8,8 @@ from datetime import date as _date
 from flask import request
 from werkzeug.routing import BaseConverter, PathConverter
 
-from slipwise.contract import FLAG_CODES
+from slipwise.contract import FLAG_CODES, MAX_ID
 from slipwise.store.errors import NotFoundError
-from slipwise.store.validation import MAX_ID
 
 from .errors import ApiError
 

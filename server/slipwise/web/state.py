@@ -3,10 +3,10 @@
 from __future__ import annotations
 
 import threading
-from collections import OrderedDict
 from dataclasses import dataclass, field
 from typing import Any
 
+from cachetools import LRUCache
 from flask import current_app
 
 from slipwise.store import Database
@@ -17,9 +17,8 @@ class State:
     db: Database
     secret: bytes
     thresholds: Any = None
-    picture_cache: "OrderedDict[tuple, bytes]" = field(default_factory=OrderedDict)
+    picture_cache: LRUCache = field(default_factory=lambda: LRUCache(maxsize=256))  # reading id -> SVG
     picture_lock: threading.Lock = field(default_factory=threading.Lock)
-    picture_cache_size: int = 256
     auto_upgrade: bool = True      # upgrade an older schema (else refuse it)
     schema_ready: bool = False     # set once the schema was checked; not at start if the database was down
     schema_lock: threading.Lock = field(default_factory=threading.Lock)

@@ -1,4 +1,4 @@
-"""The bridge to the interpretation engine: its input errors become API errors."""
+"""The engine, as the services call it: its InputError becomes the store's ValidationError."""
 
 from __future__ import annotations
 
@@ -7,21 +7,21 @@ from typing import Any, Mapping
 from slipwise.contract import NAMEPLATE_FIELDS
 from slipwise.store.errors import ValidationError
 
-from .state import state
 
-
-def interpret(record: Mapping[str, Any]) -> dict:
+def interpret(record: Mapping[str, Any], thresholds: Any = None) -> dict:
+    """The engine's result for one flat record (see ``records.engine_record``)."""
     from slipwise.engine import InputError, interpret_one
     try:
-        return interpret_one(record, state().thresholds)
+        return interpret_one(record, thresholds)
     except InputError as e:
         raise ValidationError(e.message, e.field) from None
 
 
-def torque_speed(record: Mapping[str, Any]) -> dict:
+def torque_speed(record: Mapping[str, Any], thresholds: Any = None) -> dict:
+    """The torque-speed curves of one flat record (``slipwise.engine.torque_speed_curve``)."""
     from slipwise.engine import InputError, torque_speed_curve
     try:
-        return torque_speed_curve(record, state().thresholds)
+        return torque_speed_curve(record, thresholds)
     except InputError as e:
         raise ValidationError(e.message, e.field) from None
 
@@ -83,7 +83,7 @@ def with_stored_result(curve: Mapping[str, Any], result: Mapping[str, Any], spee
     return out
 
 
-def check_nameplate(tag: str, fields: Mapping[str, Any]) -> None:
+def check_nameplate(tag: str, fields: Mapping[str, Any], thresholds: Any = None) -> None:
     """Refuse a nameplate the engine could not use, by interpreting a reading at the rated point.
 
     Only errors on nameplate fields count: the synthetic reading is there to
@@ -95,7 +95,7 @@ def check_nameplate(tag: str, fields: Mapping[str, Any]) -> None:
               "current_l1_a": amps, "current_l2_a": amps, "current_l3_a": amps,
               "voltage_l12_v": volts, "voltage_l23_v": volts, "voltage_l31_v": volts}
     try:
-        interpret(record)
+        interpret(record, thresholds)
     except ValidationError as e:
         if e.field in NAMEPLATE_FIELDS:
             raise

@@ -1,0 +1,241 @@
+"""The declaration: every input field and result column, once (name, unit, range, text rules, help).
+
+CSV column names, JSON keys and flag codes defined here are public: engineers'
+spreadsheets and scripts depend on them. Extend, never rename.
+
+Units are in the names (``_v``, ``_a``, ``_hz``, ``_rpm``, ``_kw``, ``_pct``).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+ENGINE_VERSION = "1.0.0"
+
+
+@dataclass(frozen=True)
+class NumberField:
+    """A numeric input with its allowed (inclusive) range and unit.
+
+    ``label``, ``hint`` and ``shown_unit`` are the page's words for it (the API's ``help`` says
+    the same for a script writer); blank ``shown_unit`` means ``unit``.
+    """
+
+    name: str
+    low: float
+    high: float
+    unit: str
+    required: bool = False
+    default: float | None = None
+    integer: bool = False
+    help: str = ""
+    label: str = ""
+    hint: str = ""
+    shown_unit: str = ""
+
+    kind = "number"
+
+    def range_text(self) -> str:
+        unit = f" {self.unit}" if self.unit else ""
+        return f"{_fmt(self.low)} to {_fmt(self.high)}{unit}"
+
+
+@dataclass(frozen=True)
+class ChoiceField:
+    """A text input restricted to a set of codes (matched without regard to case, stored as written here)."""
+
+    name: str
+    choices: tuple[str, ...]
+    required: bool = False
+    default: str | None = None
+    help: str = ""
+    label: str = ""
+    hint: str = ""
+
+    kind = "choice"
+
+    def range_text(self) -> str:
+        return "one of " + ", ".join(self.choices)
+
+
+@dataclass(frozen=True)
+class TextField:
+    """Free text: at most ``max_chars`` characters (code points) after trimming.
+
+    ``one_line`` refuses tab and line breaks too; ``refused_categories`` are Unicode general
+    categories refused anywhere in the value (see :data:`TAG_REFUSED_CATEGORIES`).
+    """
+
+    name: str
+    max_chars: int
+    required: bool = False
+    one_line: bool = False
+    refused_categories: frozenset[str] = frozenset({"Cc", "Cs"})
+    help: str = ""
+    label: str = ""
+
+    kind = "text"
+
+    def range_text(self) -> str:
+        lines = "one line of " if self.one_line else "text of "
+        low = 1 if self.required else 0
+        return f"{lines}{low} to {self.max_chars} characters"
+
+
+def _fmt(x: float) -> str:
+    return f"{x:g}"
+
+
+DESIGNS = ("A", "B", "C", "D", "N", "H")
+SUPPLIES = ("mains", "drive")
+DRIVEN_LOADS = ("variable_torque", "constant_torque", "constant_power", "high_breakaway")
+
+TAG_MAX_CHARS = 80
+
+# Unicode categories a tag may not hold: controls (C0, DEL, C1), format characters (zero-width space,
+# byte order mark, the bidirectional overrides that reorder what is shown - "Trojan Source",
+# CVE-2021-42574), line and paragraph separators, private use, lone surrogates. Each would let two
+# tags that look the same on a label, the page or the CSV be different records.
+TAG_REFUSED_CATEGORIES = frozenset({"Cc", "Cf", "Zl", "Zp", "Co", "Cs"})
+
+_KW_HINT = "Shaft output from the nameplate. Give kW or hp, not both."
+# --- nameplate -------------------------------------------------------------
+NAMEPLATE_NUMBERS: tuple[NumberField, ...] = (
+    NumberField("rated_power_kw", 0.06, 2000.0, "kW", help="rated shaft output; give this or rated_power_hp",
+                label="Rated output", hint=_KW_HINT),
+    NumberField("rated_power_hp", 0.08, 2700.0, "hp", help="rated shaft output; give this or rated_power_kw",
+                label="Rated output", hint=_KW_HINT),
+    NumberField("rated_voltage_v", 100.0, 15000.0, "V", required=True, help="rated line-to-line voltage",
+                label="Rated voltage", hint="Line-to-line, for the connection in use (star or delta)."),
+    NumberField("rated_current_a", 0.05, 5000.0, "A", required=True, help="rated line current at rated voltage",
+                label="Rated current", hint="Line current at the rated voltage above."),
+    NumberField("rated_frequency_hz", 16.0, 120.0, "Hz", required=True, label="Rated frequency"),
+    NumberField("rated_speed_rpm", 100.0, 7200.0, "rpm", required=True, help="full-load speed",
+                label="Rated speed", hint="Full-load speed, not synchronous speed."),
+    NumberField("poles", 2, 24, "", integer=True, help="inferred from rated speed and frequency when blank",
+                label="Poles", hint="Blank: inferred from rated speed and frequency.", shown_unit="poles"),
+    NumberField("rated_power_factor", 0.30, 0.98, "", help="typical value for size and poles when blank",
+                label="Rated power factor", hint="Blank: a typical value for the size and poles.",
+                shown_unit="cos φ"),
+    NumberField("rated_efficiency_pct", 40.0, 99.0, "%", help="IE2 nominal value for size and poles when blank",
+                label="Rated efficiency", hint="Blank: the IE2 nominal value for the size and poles."),
+    NumberField("service_factor", 1.0, 1.5, "", default=1.0, label="Service factor",
+                hint="Blank: 1.0 (no margin above rated load).", shown_unit="SF"),
+    NumberField("breakdown_torque_pct", 120.0, 450.0, "%",
+                help="catalogue breakdown torque as % of rated torque; typical for the design when blank",
+                label="Breakdown torque", hint="Catalogue value. Blank: typical for the design.",
+                shown_unit="% of rated"),
+    NumberField("locked_rotor_torque_pct", 50.0, 400.0, "%",
+                help="catalogue locked-rotor torque as % of rated torque; typical for the design when blank",
+                label="Locked-rotor torque", hint="Catalogue value. Blank: typical for the design.",
+                shown_unit="% of rated"),
+)
+NAMEPLATE_CHOICES: tuple[ChoiceField, ...] = (
+    ChoiceField("design", DESIGNS, help="NEMA A-D or IEC N/H; B at 60 Hz and N at 50 Hz when blank",
+                label="Design", hint="NEMA A–D or IEC N/H. Blank: B on a 60 Hz nameplate, N on 50 Hz."),
+    ChoiceField("supply", SUPPLIES, default="mains", label="Supply", hint="Blank: mains (direct on line)."),
+    ChoiceField("driven_load", DRIVEN_LOADS, default="constant_torque",
+                help="torque law of the driven machine; constant_torque (the stricter case) when blank",
+                label="Driven machine",
+                hint="Fans and pumps are variable torque. Blank: constant torque (the stricter case)."),
+)
+NAMEPLATE_FIELDS: tuple[str, ...] = ("tag",) + tuple(f.name for f in NAMEPLATE_NUMBERS) + tuple(
+    f.name for f in NAMEPLATE_CHOICES)
+
+# --- text ------------------------------------------------------------------
+_TEXT_REFUSED = frozenset({"Cc", "Cs"})   # tab and newline are let through where one_line is False
+TEXT_FIELDS: dict[str, TextField] = {f.name: f for f in (
+    TextField("tag", TAG_MAX_CHARS, required=True, one_line=True, refused_categories=TAG_REFUSED_CATEGORIES,
+              help="the motor's tag as on its label: one line of visible characters", label="Tag"),
+    TextField("site", 120, required=True, help="site or plant name", label="Site"),
+    TextField("location", 200, help="where the motor is on the site", label="Location"),
+    TextField("description", 2000, help="what the motor drives", label="Description"),
+    TextField("comment", 2000, help="the reviewer's reason; required for retake and rejected", label="Comment"),
+    TextField("username", 64, required=True, one_line=True, help="login name", label="User name"),
+)}
+
+# --- reading ---------------------------------------------------------------
+READING_NUMBERS: tuple[NumberField, ...] = (
+    NumberField("frequency_hz", 1.0, 120.0, "Hz", required=True, help="supply (or drive output) frequency",
+                label="Frequency", hint="Supply, or drive output, frequency."),
+    NumberField("speed_rpm", 1.0, 7500.0, "rpm", required=True, help="shaft speed by tachometer",
+                label="Shaft speed", hint="Tachometer on the motor shaft itself."),
+    NumberField("current_l1_a", 0.0, 10000.0, "A", label="Current L1"),
+    NumberField("current_l2_a", 0.0, 10000.0, "A", label="Current L2"),
+    NumberField("current_l3_a", 0.0, 10000.0, "A", label="Current L3"),
+    NumberField("voltage_l12_v", 10.0, 16000.0, "V", label="Voltage L1–L2"),
+    NumberField("voltage_l23_v", 10.0, 16000.0, "V", label="Voltage L2–L3"),
+    NumberField("voltage_l31_v", 10.0, 16000.0, "V", label="Voltage L3–L1"),
+    NumberField("power_kw", 0.0, 3000.0, "kW", help="measured three-phase input power", label="Input power",
+                hint="Optional: three-phase input from a power analyser."),
+    NumberField("power_factor", 0.05, 1.0, "", help="measured displacement power factor", label="Power factor",
+                hint="Optional: measured displacement power factor.", shown_unit="cos φ"),
+    NumberField("tachometer_resolution_rpm", 0.01, 50.0, "rpm", default=1.0,
+                help="reading resolution plus accuracy of the tachometer", label="Tachometer resolution",
+                hint="Resolution plus accuracy. Blank: 1 rpm."),
+    NumberField("current_accuracy_pct", 0.1, 20.0, "%", default=2.0, help="clamp meter accuracy, % of reading",
+                label="Clamp meter accuracy", hint="Blank: 2 %.", shown_unit="% of reading"),
+    NumberField("voltage_accuracy_pct", 0.1, 10.0, "%", default=1.0, help="voltmeter accuracy, % of reading",
+                label="Voltmeter accuracy", hint="Blank: 1 %.", shown_unit="% of reading"),
+    NumberField("power_accuracy_pct", 0.1, 20.0, "%", default=2.0, help="power meter accuracy, % of reading",
+                label="Power meter accuracy", hint="Blank: 2 %.", shown_unit="% of reading"),
+    NumberField("minutes_running", 0.0, 1.0e6, "min",
+                help="time the motor has run before the reading; unknown means it may be cold",
+                label="Running before reading", hint="Blank: unknown, the rotor may be cold (widens the band)."),
+)
+CURRENT_FIELDS = ("current_l1_a", "current_l2_a", "current_l3_a")
+VOLTAGE_FIELDS = ("voltage_l12_v", "voltage_l23_v", "voltage_l31_v")
+READING_FIELDS: tuple[str, ...] = tuple(f.name for f in READING_NUMBERS) + ("taken_at",)
+TAKEN_AT_HELP = ("ISO 8601 date and time of the reading, e.g. 2024-05-17T09:30:00+02:00 (a time without an offset "
+                 "is the technician's local clock); the time of receipt when blank")
+
+# --- review ----------------------------------------------------------------
+REVIEW_DECISIONS = ("accepted", "retake", "rejected")
+DECISIONS_NEEDING_COMMENT = ("retake", "rejected")
+
+INPUT_FIELDS: tuple[str, ...] = NAMEPLATE_FIELDS + READING_FIELDS
+
+# --- output ----------------------------------------------------------------
+# The contract's columns first, in this order; extensions after.
+RESULT_COLUMNS: tuple[str, ...] = (
+    "poles", "sync_speed_rpm", "slip_pct",
+    "load_pct", "load_low_pct", "load_high_pct",
+    "load_slip_pct", "load_current_pct", "load_power_pct",
+    "output_kw", "torque_pct",
+    "efficiency_pct", "efficiency_low_pct", "efficiency_high_pct", "efficiency_class",
+    "voltage_unbalance_pct", "voltage_unbalance_factor_pct", "current_unbalance_pct", "derating_factor",
+    "voltage_deviation_pct", "frequency_deviation_pct", "supply_zone",
+    "breakdown_margin", "flags", "findings", "error",
+    # extensions
+    "slip_rpm", "torque_low_pct", "torque_high_pct",
+    "predicted_current_a", "predicted_power_factor",
+    "breakdown_torque_now_pct", "starting_margin", "operating_side",
+    "error_field", "engine_version",
+    # extensions: verdicts on the band (engine/verdicts.py)
+    "verdict", "breakdown_margin_low", "limit_flags",
+    "load_state", "breakdown_state", "supply_state", "voltage_unbalance_state", "current_unbalance_state",
+    "starting_state",
+)
+#: The verdict words of the ``verdict`` column and the state words of the ``*_state`` columns.
+VERDICT_WORDS: tuple[str, ...] = ("sound", "watch", "act", "retake")
+STATE_WORDS: tuple[str, ...] = ("clear", "at_limit", "beyond")
+TEXT_RESULT_COLUMNS = frozenset({"efficiency_class", "supply_zone", "flags", "findings", "error",
+                                 "operating_side", "error_field", "engine_version",
+                                 "verdict", "limit_flags", "load_state", "breakdown_state", "supply_state",
+                                 "voltage_unbalance_state", "current_unbalance_state", "starting_state"})
+INTEGER_RESULT_COLUMNS = frozenset({"poles"})
+
+FLAG_CODES: tuple[str, ...] = (
+    "underloaded", "overloaded", "over_service_factor", "near_breakdown",
+    "voltage_unbalance", "current_unbalance", "supply_out_of_tolerance",
+    "speed_above_synchronous", "readings_inconsistent",
+    # extensions
+    "starting_torque_low",
+)
+
+NUMBER_FIELDS = {f.name: f for f in NAMEPLATE_NUMBERS + READING_NUMBERS}
+CHOICE_FIELDS = {f.name: f for f in NAMEPLATE_CHOICES}
+# Record ids are INTEGER columns: 32-bit on PostgreSQL, so a larger id can never exist.
+MAX_ID = 2 ** 31 - 1
+
+__all__ = ["ENGINE_VERSION", "DESIGNS", "SUPPLIES", "DRIVEN_LOADS", "TAG_MAX_CHARS", "TAG_REFUSED_CATEGORIES", "NAMEPLATE_NUMBERS", "NAMEPLATE_CHOICES", "NAMEPLATE_FIELDS", "TEXT_FIELDS", "READING_NUMBERS", "CURRENT_FIELDS", "VOLTAGE_FIELDS", "READING_FIELDS", "TAKEN_AT_HELP", "REVIEW_DECISIONS", "DECISIONS_NEEDING_COMMENT", "INPUT_FIELDS", "RESULT_COLUMNS", "VERDICT_WORDS", "STATE_WORDS", "TEXT_RESULT_COLUMNS", "INTEGER_RESULT_COLUMNS", "FLAG_CODES", "NUMBER_FIELDS", "CHOICE_FIELDS", "MAX_ID", "NumberField", "ChoiceField", "TextField"]

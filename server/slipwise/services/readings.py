@@ -1,0 +1,177 @@
+"""Submit a reading (idempotent on client_id), review it, read it back, list the day, export, interpret only.
+
+The reading and its engine result are written in one transaction with their
+flags and audit row: either all of it is stored and acknowledged, or nothing.
+A replay of a stored client_id with the same content returns the stored row;
+with other content it is a ConflictError.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass
+from datetime import datetime
+from typing import Any, Iterator, Mapping
+
+from sqlalchemy import RowMapping
+
+from slipwise.store import audit
+from slipwise.store import motors as store_motors
+from slipwise.store import readings as store
+from slipwise.store.database import Database
+from slipwise.store.errors import ConflictError, DuplicateError, NotFoundError, ValidationError
+from slipwise.store.schema import DECISIONS
+from slipwise.store.types import utcnow
+
+from .interpretation import interpret
+from .records import Submission, engine_record, to_json
+
+
+@dataclass(frozen=True)
+class ReadingRecord:
+    """A stored reading (``row``: the store's reading row, inputs and result as JSON text) and its reviews."""
+
+    row: RowMapping
+    reviews: list[RowMapping]
+
+
+@dataclass(frozen=True)
+class Review:
+    """One stored review and the reading it judged, as it stands after the review."""
+
+    id: int
+    reading_id: int
+    decision: str
+    comment: str
+    reviewer: str
+    reviewed_at: datetime
+    reading: ReadingRecord
+
+
+def _record(conn, reading_id: int) -> ReadingRecord:
+    row = store.reading_row(conn, reading_id)
+    if row is None:
+        raise NotFoundError(f"no reading with id {reading_id}", "id")
+    return ReadingRecord(row, store.review_rows(conn, reading_id))
+
+
+def get_reading(db: Database, reading_id: int) -> ReadingRecord:
+    with db.read() as conn:
+        return _record(conn, reading_id)
+
+
+def day_log(db: Database, *, limit: int = 100_000, **filters) -> list[RowMapping]:
+    """Readings in the order taken; filters: date, site, technician, flag, motor_id (None = any)."""
+    with db.read() as conn:
+        return store.reading_rows(conn, limit=limit, **filters)
+
+
+def export_rows(db: Database, **filters) -> Iterator[RowMapping]:
+    """Rows for the CSV record (date, site filters), streamed inside one read transaction."""
+    with db.read() as conn:
+        yield from store.iter_export_rows(conn, **filters)
+
+
+def picture_record(db: Database, reading_id: int) -> tuple[dict, dict]:
+    """(engine record, {tag, taken_at, engine_version, result}) for the torque-speed picture of a stored reading.
+
+    ``result`` is the stored result: the picture draws its points, not a new interpretation's.
+    """
+    with db.read() as conn:
+        row = store.nameplate_row(conn, reading_id)
+    if row is None:
+        raise NotFoundError(f"no reading with id {reading_id}", "id")
+    record = engine_record(row, row["tag"], json.loads(row["inputs"]), row["taken_at"])
+    return record, {"tag": row["tag"], "taken_at": row["taken_at"], "engine_version": row["engine_version"],
+                    "result": json.loads(row["result"])}
+
+
+def interpret_reading(db: Database, inputs: Mapping[str, Any], taken_at: str | None, *,
+                      motor_id: int | None = None, nameplate: Mapping[str, Any] | None = None,
+                      tag: str = "(untagged)", thresholds: Any = None) -> dict:
+    """The engine's result for a reading of a registered motor (``motor_id``) or of a given ``nameplate``.
+
+    Nothing is stored.
+    """
+    if motor_id is not None:
+        with db.read() as conn:
+            motor = store_motors.motor_row(conn, motor_id)
+        if motor is None:
+            raise NotFoundError(f"no motor with id {motor_id}", "motor_id")
+        record = engine_record(motor, motor["tag"], inputs, taken_at)
+    else:
+        record = engine_record(nameplate or {}, tag, inputs, taken_at)
+    return interpret(record, thresholds)
+
+
+def _replay(conn, found, digest: str, client_id: str) -> ReadingRecord:
+    if found.content_hash != digest:
+        raise ConflictError(f"client_id {client_id} was already used for a different reading (id {found.id}); "
+                            "a correction needs a new client_id and supersedes", "client_id")
+    return _record(conn, found.id)
+
+
+def submit_reading(db: Database, user: Mapping[str, Any], sub: Submission,
+                   thresholds: Any = None) -> tuple[ReadingRecord, bool]:
+    """Interpret and store a reading. Returns (reading, created).
+
+    ``created`` is False for a replay of a stored submission. Raises
+    ConflictError (same client_id, other content; superseding twice),
+    NotFoundError (motor or superseded reading), ValidationError (a correction
+    of another motor; input the engine refuses), before anything is written.
+    """
+    digest = sub.content_hash(user["id"])
+    with db.read() as conn:
+        found = store.by_client_id(conn, sub.client_id)
+        if found:
+            return _replay(conn, found, digest, sub.client_id), False
+        revision = store_motors.latest_revision(conn, sub.motor_id)
+        if revision is None:
+            raise NotFoundError(f"no motor with id {sub.motor_id}", "motor_id")
+        if sub.supersedes is not None:
+            old_motor = store.motor_of(conn, sub.supersedes)
+            if old_motor is None:
+                raise NotFoundError(f"no reading with id {sub.supersedes} to supersede", "supersedes")
+            if old_motor != sub.motor_id:
+                raise ValidationError(f"reading {sub.supersedes} is of another motor; a correction must be of "
+                                      "the same motor", "supersedes")
+    result = interpret(engine_record(revision, revision["motor_tag"], sub.inputs, sub.taken_at), thresholds)
+    now = utcnow()
+    stored_inputs = dict(sub.inputs)
+    stored_inputs["taken_at"] = sub.taken_at
+    try:
+        with db.write() as conn:  # one transaction: the reading, its result, its flags, its audit row
+            rid = store.insert_reading(conn, dict(
+                client_id=sub.client_id, motor_id=sub.motor_id, motor_revision_id=revision["id"],
+                technician_id=user["id"], inputs=to_json(stored_inputs), result=to_json(result),
+                engine_version=str(result.get("engine_version") or ""), content_hash=digest,
+                taken_at=sub.taken_at or now.isoformat(timespec="seconds"), taken_date=sub.taken_date,
+                taken_at_utc=sub.taken_at_utc, received_at=now, supersedes_id=sub.supersedes,
+            ), result.get("flags") or ())
+            audit.record(conn, user, "reading.supersede" if sub.supersedes else "reading.submit", "reading", rid,
+                         {"client_id": sub.client_id, "motor_id": sub.motor_id, "supersedes": sub.supersedes})
+            return _record(conn, rid), True
+    except DuplicateError:
+        with db.read() as conn:  # a racing twin won: a replay, or a second successor of the same reading
+            found = store.by_client_id(conn, sub.client_id)
+            if found:
+                return _replay(conn, found, digest, sub.client_id), False
+        raise ConflictError(f"reading {sub.supersedes} is already superseded by another reading; "
+                            "supersede the newest one", "supersedes") from None
+
+
+def review_reading(db: Database, user: Mapping[str, Any], reading_id: int, decision: str, comment: str) -> Review:
+    """Append a supervisor's review. A decision other than accepted needs a comment."""
+    if decision not in DECISIONS:
+        raise ValidationError("decision must be one of " + ", ".join(DECISIONS), "decision")
+    if decision != "accepted" and not comment:
+        raise ValidationError(f"comment is required for {decision}: text of 1 to 2000 characters", "comment")
+    with db.write() as conn:
+        if store.motor_of(conn, reading_id) is None:
+            raise NotFoundError(f"no reading with id {reading_id}", "id")
+        now = utcnow()
+        review_id = store.insert_review(conn, reading_id, decision, comment, user["id"], now)
+        audit.record(conn, user, "reading.review", "reading", reading_id,
+                     {"review_id": review_id, "decision": decision})
+    with db.read() as conn:
+        return Review(review_id, reading_id, decision, comment, user["username"], now, _record(conn, reading_id))
