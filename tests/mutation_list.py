@@ -23,6 +23,8 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 PHYS = "server/slipwise/physics/"
 ENGINE = "server/slipwise/engine/pipeline.py"
+VERDICTS = "server/slipwise/engine/verdicts.py"
+NAMEPLATE = "server/slipwise/engine/nameplate.py"
 
 
 @dataclass(frozen=True)
@@ -64,9 +66,9 @@ MUTATIONS = (
              "rotor = rotor_copper_loss_w(s, np.asarray(output_w, dtype=float) + fw)",
              "rotor = s * (np.asarray(output_w, dtype=float) + fw)",
              ("tests/physics/test_efficiency.py",)),
-    Mutation("M6", "slip taken at the measured frequency on mains (slip speed with V/V_r only)", ENGINE,
-             "slip_equiv = np.where(on_drive, slip_rpm, s * ns_r)",
-             "slip_equiv = np.where(on_drive, slip_rpm, slip_rpm)",
+    Mutation("M6", "slip taken at the measured frequency with V/V_r only (no (V/f)^2)", ENGINE,
+             "load.slip_method(slip_rpm, s_r * ns_r, flux, speed_ratio,",
+             "load.slip_method(slip_rpm, s_r * ns_r, v / v_r, speed_ratio,",
              ("tests/engine/test_physics_laws.py",)),
     Mutation("M7a", "core loss held constant (loss model)", PHYS + "efficiency.py",
              "core = budget.core_w * np.asarray(flux_ratio, dtype=float) ** 2 * np.asarray(frequency_ratio, "
@@ -89,6 +91,30 @@ MUTATIONS = (
              "factor = np.asarray(flux_ratio, dtype=float) * np.asarray(speed_ratio, dtype=float)",
              "factor = np.asarray(speed_ratio, dtype=float)",
              ("tests/physics/test_load.py",)),
+    Mutation("M11", "no saturation: no-load current in proportion to the flux (engine)", ENGINE,
+             "i0, i0_low, i0_high = typical.saturated_no_load_current(i0_r, flux)",
+             "i0 = i0_low = i0_high = load.magnetising_current_a(i0_r, flux)",
+             ("tests/bench/test_virtual_bench.py",)),
+    Mutation("M12", "breakdown margin's low end from the central breakdown torque", ENGINE,
+             'breakdown_margin_band(bd_pct, pl("bd_pct"), pl("bd_low_pct"),',
+             'breakdown_margin_band(bd_pct, pl("bd_pct"), pl("bd_pct"),',
+             ("tests/bench/test_virtual_bench.py",)),
+    Mutation("M13", "overloaded judged on the high end of the band (central-value verdicts)", VERDICTS,
+             "over = V.judge_maximum(basis_low, basis_high, th.overloaded_pct)",
+             "over = V.judge_maximum(basis_high, basis_high, th.overloaded_pct)",
+             ("tests/engine/test_verdicts.py",)),
+    Mutation("M14", "near_breakdown judged on the value with the low end as its band", VERDICTS,
+             "breakdown = V.judge_minimum(margin_low, margin_low, th.near_breakdown_margin)",
+             "breakdown = V.judge_minimum(margin_low + 1.0, margin_low, th.near_breakdown_margin)",
+             ("tests/engine/test_verdicts.py",)),
+    Mutation("M15", "a defaulted service factor of 1.0 judged as given", ENGINE,
+             'sf_given=pl("service_factor_given")',
+             "sf_given=True",
+             ("tests/engine/test_interpret.py",)),
+    Mutation("M16", "an assumed efficiency not capped by the rated slip", NAMEPLATE,
+             "capped = neither & (eta > eta_cap)",
+             "capped = neither & (eta > 2.0)",
+             ("tests/engine/test_verdicts.py",)),
 )
 
 

@@ -113,13 +113,9 @@ export function provisional(record) {
     return out;
   }
   const speedRatio = n / nr;
-  let torque;
-  if (onDrive) {
-    const flux = v / f / (vr / fr);
-    torque = ((ns - n) / (sr * nsr)) * flux * flux;
-  } else {
-    torque = (s / sr) * (v / vr) ** 2;
-  }
+  // torque ~ (V/f)^2 x slip speed, one law on mains and drive (server: physics.load.slip_torque_pu)
+  const flux = v / f / (vr / fr);
+  const torque = ((ns - n) / (sr * nsr)) * flux * flux;
   out.load_slip_pct = finite(100 * Math.max(torque, 0) * speedRatio);
   return out;
 }

@@ -41,15 +41,24 @@ const SEVERE = new Set(["overloaded", "over_service_factor", "near_breakdown", "
 export const SAFETY_NOTE = "These results support a qualified person's judgement; they do not replace it. Before any work on "
   + "the motor or its supply, isolate, lock off and prove dead. Local electrical codes and licensed practice prevail.";
 
+/** The server's verdict words (engine/verdicts.py), their look and what each asks of the technician. */
+const VERDICTS = {
+  sound: { cls: "ok", text: "Sound", meaning: "every judged quantity is clear of its limit" },
+  watch: { cls: "warn", text: "Watch", meaning: "something is at the limit (its band straddles it), or the motor is underloaded" },
+  act: { cls: "bad", text: "Act", meaning: "a safety or supply quantity is beyond its limit: see the findings" },
+  retake: { cls: "bad", text: "Retake", meaning: "the readings contradict each other and cannot be judged" },
+};
+
+/** The reading's verdict: the server's word, or for a result stored before verdicts one read from its flags. */
 export function verdict(result) {
-  const flags = new Set(result.flags || []);
-  if (flags.has("speed_above_synchronous")) return { cls: "bad", text: "No load estimate" };
-  if (flags.has("readings_inconsistent")) return { cls: "bad", text: "Take the readings again" };
-  if (flags.has("overloaded") || flags.has("over_service_factor")) return { cls: "bad", text: "Overloaded" };
-  if (flags.has("near_breakdown")) return { cls: "bad", text: "Close to breakdown" };
-  if (flags.has("underloaded")) return { cls: "warn", text: "Underloaded" };
-  if (flags.size) return { cls: "warn", text: "Within rating, see findings" };
-  return { cls: "ok", text: "Within rating" };
+  let word = result.verdict;
+  if (!VERDICTS[word]) {
+    const flags = new Set(result.flags || []);
+    if ([...flags].some((f) => f !== "underloaded" && f !== "readings_inconsistent")) word = "act";
+    else if (flags.has("readings_inconsistent")) word = "retake";
+    else word = flags.size ? "watch" : "sound";
+  }
+  return { word, ...VERDICTS[word] };
 }
 
 /** The load bar: zones underloaded / normal / overloaded, the band, the estimate. */
@@ -94,8 +103,8 @@ function fact(term, value, extra, key) {
 export function findingsList(findings) {
   if (!findings || !findings.length) return h("p", {}, "No findings: nothing outside the limits.");
   return h("ul", { class: "findings" }, findings.map((f) =>
-    h("li", { class: ["finding", SEVERE.has(f.flag) && "severe"], dataset: { flag: f.flag } },
-      h("h3", {}, FLAG_WORDS[f.flag] || f.flag),
+    h("li", { class: ["finding", f.state !== "at_limit" && SEVERE.has(f.flag) && "severe"], dataset: { flag: f.flag } },
+      h("h3", {}, (f.state === "at_limit" ? "At the limit: " : "") + (FLAG_WORDS[f.flag] || f.flag)),
       h("p", {}, f.text),
       f.caution ? h("p", { class: "caution" }, f.caution) : null)));
 }
@@ -107,18 +116,23 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
   const band = result.load_low_pct != null ? `band ${fmt(result.load_low_pct, 0)}–${fmt(result.load_high_pct, 0)} %` : "no band";
   const label = `Load ${fmt(result.load_pct, 0)} % of rated output, ${band}; underloaded below ${LIMITS.underloaded_pct} %, overloaded above ${LIMITS.overloaded_pct} %`;
   const out = [];
+  // the verdict first and largest: the one word a technician acts on
+  out.push(h("section", { class: "panel verdict-panel", "aria-labelledby": "verdict" },
+    h("p", { class: "verdict-head" },
+      h("span", { class: ["verdict", "verdict-word", v.cls], id: "verdict", dataset: { verdict: v.word } }, v.text),
+      h("span", { class: "verdict-meaning" }, v.meaning))));
   out.push(h("section", { class: "panel", "aria-labelledby": "load-h" },
     h("h2", { id: "load-h" }, "Load"),
     h("div", { class: "result-head" },
       h("span", { class: "big", id: "load-value" }, result.load_pct == null ? "–" : `${fmt(result.load_pct, 0)} %`),
-      h("span", {}, "of rated output, ", band),
-      h("span", { class: ["verdict", v.cls], id: "verdict" }, v.text)),
+      h("span", {}, "of rated output, ", band)),
     loadBar({ load: result.load_pct, low: result.load_low_pct, high: result.load_high_pct, serviceFactor, label }),
     h("dl", { class: "facts" },
       fact("Torque", `${fmt(result.torque_pct, 0)} %`, "of rated"),
       fact("Output", `${fmt(result.output_kw, 1)} kW`),
       fact("Slip", `${fmt(result.slip_pct, 2)} %`, `${fmt(result.slip_rpm, 0)} rpm`),
-      fact("Breakdown margin", result.breakdown_margin == null ? "–" : `× ${fmt(result.breakdown_margin, 2)}`, "breakdown ÷ present torque"),
+      fact("Breakdown margin", result.breakdown_margin == null ? "–" : `× ${fmt(result.breakdown_margin, 2)}`,
+        result.breakdown_margin_low != null ? `at least × ${fmt(result.breakdown_margin_low, 2)}; breakdown ÷ present torque` : "breakdown ÷ present torque"),
       fact("Efficiency", `${fmt(result.efficiency_pct, 1)} %`, result.efficiency_low_pct != null ? `${fmt(result.efficiency_low_pct, 1)}–${fmt(result.efficiency_high_pct, 1)} %` : ""),
       fact("Efficiency class", result.efficiency_class || "–", result.efficiency_class ? "at the rated efficiency" : "no rated efficiency given"))));
   if (flags.has("readings_inconsistent")) {

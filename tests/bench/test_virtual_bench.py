@@ -14,59 +14,23 @@ import pytest
 from tests.bench import virtual_bench as vb
 
 REASONS = {
-    "band": "load band misses the truth: the small machine at 25 % load reads 3-4 % low (magnetising "
-            "current and stray loss not modelled as the bench has them); the large one at 10 % "
-            "load and 95 % V reads 0.1-0.3 % high with a band below 0.3 % wide on the low side",
-    "false_flag": "flag raised that the truth does not call for: overloaded/over_service_factor on the "
-                  "central value at a true 100 % load (verdict not yet on the band), readings_inconsistent "
-                  "at 105 % V (small machine at 10-75 % load, large at 10 %: the saturated magnetising "
-                  "current is not yet in the current method)",
-    "margin_low": "no pessimistic breakdown margin yet: the central margin is reported, above the truth "
-                  "on the small machine (typical 270 % breakdown torque against a true 238 %) and by "
-                  "0.1-1 % on the large one (data-sheet value, no -10 % tolerance); to be wired from "
-                  "typical.breakdown_torque_low_pct and torque_speed.breakdown_margin_band",
+    "band": "load band misses the truth by 0.1-1 % where the slip and input-power methods, the two narrow "
+            "ones, both read low and the current method is too wide to pull the fused band up: the small "
+            "machine at 25 % load (slip 19.5 %, power 21.2 %, current 41.7 % for a true 25 % at rated V and f: "
+            "the rotor runs cooler than the temperature model assumes and the bench's fixed and stray losses "
+            "exceed the typical budget), the small one at 105 % V, 102 % f, 50 % (band top 49.9 %), and the "
+            "large one at 95 % V, 102 % f, 10 % (band bottom 10.1 %: a 1 rpm slip reading). Physics side "
+            "(light-load rotor temperature, fixed-loss share, fusion), not the verdict engine",
+    "false_flag": "",
+    "margin_low": "",
     "overloaded": "",
     "underloaded": "",
 }
 
-# filled from a run of the bench on today's engine (python -m tests.bench.virtual_bench)
+# filled from a run of the bench on the engine with verdicts on the band (python -m tests.bench.virtual_bench)
 FAILING_TODAY: dict[str, set[str]] = {
-    "band": {
-        "2.2kW-V100-f100-L25", "2.2kW-V100-f102-L25", "2.2kW-V100-f98-L25", "2.2kW-V95-f100-L25",
-        "2.2kW-V95-f102-L25", "2.2kW-V95-f98-L25", "200kW-V95-f100-L10", "200kW-V95-f102-L10",
-    },
-    "false_flag": {
-        "2.2kW-V100-f100-L100", "2.2kW-V100-f102-L100", "2.2kW-V100-f98-L100", "2.2kW-V105-f100-L10",
-        "2.2kW-V105-f100-L100", "2.2kW-V105-f100-L25", "2.2kW-V105-f100-L50", "2.2kW-V105-f102-L100",
-        "2.2kW-V105-f98-L10", "2.2kW-V105-f98-L100", "2.2kW-V105-f98-L25", "2.2kW-V105-f98-L50",
-        "2.2kW-V105-f98-L75", "200kW-V100-f98-L100", "200kW-V105-f100-L100", "200kW-V105-f102-L100",
-        "200kW-V105-f98-L10", "200kW-V105-f98-L100",
-    },
-    "margin_low": {
-        "2.2kW-V100-f100-L10", "2.2kW-V100-f100-L100", "2.2kW-V100-f100-L115", "2.2kW-V100-f100-L25",
-        "2.2kW-V100-f100-L50", "2.2kW-V100-f100-L75", "2.2kW-V100-f100-L90", "2.2kW-V100-f102-L10",
-        "2.2kW-V100-f102-L100", "2.2kW-V100-f102-L115", "2.2kW-V100-f102-L25", "2.2kW-V100-f102-L50",
-        "2.2kW-V100-f102-L75", "2.2kW-V100-f102-L90", "2.2kW-V100-f98-L10", "2.2kW-V100-f98-L100",
-        "2.2kW-V100-f98-L115", "2.2kW-V100-f98-L25", "2.2kW-V100-f98-L50", "2.2kW-V100-f98-L75",
-        "2.2kW-V100-f98-L90", "2.2kW-V105-f100-L10", "2.2kW-V105-f100-L100", "2.2kW-V105-f100-L115",
-        "2.2kW-V105-f100-L25", "2.2kW-V105-f100-L50", "2.2kW-V105-f100-L75", "2.2kW-V105-f100-L90",
-        "2.2kW-V105-f102-L10", "2.2kW-V105-f102-L100", "2.2kW-V105-f102-L115", "2.2kW-V105-f102-L25",
-        "2.2kW-V105-f102-L50", "2.2kW-V105-f102-L75", "2.2kW-V105-f102-L90", "2.2kW-V105-f98-L10",
-        "2.2kW-V105-f98-L100", "2.2kW-V105-f98-L115", "2.2kW-V105-f98-L25", "2.2kW-V105-f98-L50",
-        "2.2kW-V105-f98-L75", "2.2kW-V105-f98-L90", "2.2kW-V95-f100-L10", "2.2kW-V95-f100-L100",
-        "2.2kW-V95-f100-L115", "2.2kW-V95-f100-L25", "2.2kW-V95-f100-L50", "2.2kW-V95-f100-L75",
-        "2.2kW-V95-f100-L90", "2.2kW-V95-f102-L10", "2.2kW-V95-f102-L100", "2.2kW-V95-f102-L115",
-        "2.2kW-V95-f102-L25", "2.2kW-V95-f102-L50", "2.2kW-V95-f102-L75", "2.2kW-V95-f102-L90",
-        "2.2kW-V95-f98-L10", "2.2kW-V95-f98-L100", "2.2kW-V95-f98-L115", "2.2kW-V95-f98-L25",
-        "2.2kW-V95-f98-L50", "2.2kW-V95-f98-L75", "2.2kW-V95-f98-L90", "200kW-V100-f100-L100",
-        "200kW-V100-f100-L115", "200kW-V100-f102-L100", "200kW-V100-f102-L115", "200kW-V100-f98-L100",
-        "200kW-V100-f98-L115", "200kW-V100-f98-L90", "200kW-V105-f100-L100", "200kW-V105-f100-L115",
-        "200kW-V105-f102-L100", "200kW-V105-f102-L115", "200kW-V105-f98-L100", "200kW-V105-f98-L115",
-        "200kW-V95-f100-L100", "200kW-V95-f100-L115", "200kW-V95-f102-L115", "200kW-V95-f98-L100",
-        "200kW-V95-f98-L115",
-    },
-    "overloaded": set(),
-    "underloaded": set(),
+    "band": {"2.2kW-V95-f98-L25", "2.2kW-V100-f98-L25", "2.2kW-V100-f100-L25", "2.2kW-V100-f102-L25",
+             "2.2kW-V105-f102-L50", "200kW-V95-f102-L10"}, "false_flag": set(), "margin_low": set(), "overloaded": set(), "underloaded": set(),
 }
 
 

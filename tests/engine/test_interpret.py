@@ -110,7 +110,11 @@ def test_overload_and_service_factor():
     r = interpret_one(rec(speed_rpm=1452, current_l1_a=25.5, current_l2_a=25.5, current_l3_a=25.5,
                           minutes_running=120))
     assert r["load_pct"] > 100
-    assert {"overloaded", "over_service_factor"} <= set(r["flags"])
+    # issue 9: no service factor on the nameplate -> 1.0 assumed and said in the overload finding;
+    # over_service_factor is judged only on a given service factor (never two flags for one fact)
+    assert "overloaded" in r["flags"] and "over_service_factor" not in r["flags"]
+    text = next(f for f in r["findings"] if f["flag"] == "overloaded")["text"]
+    assert "1.0 was assumed" in text
     sf = interpret_one(rec(service_factor=1.15, speed_rpm=1456, current_l1_a=23.8, current_l2_a=23.8,
                            current_l3_a=23.8, minutes_running=120))
     assert 100 < sf["load_pct"] < 115
@@ -131,7 +135,14 @@ def test_supply_out_of_tolerance():
     r = interpret_one(rec(frequency_hz=51.5, speed_rpm=1517, voltage_l12_v=412, voltage_l23_v=412,
                           voltage_l31_v=412))
     assert r["supply_zone"] == "B"
-    assert "supply_out_of_tolerance" in r["flags"]
+    # issue 9: zone B is "at the limit" (IEC 60034-1 allows it, hotter, not for long); the flag means beyond
+    assert r["supply_state"] == "at_limit" and "supply_out_of_tolerance" in r["limit_flags"].split(";")
+    assert "supply_out_of_tolerance" not in r["flags"] and r["verdict"] == "watch"
+    # 53 Hz is outside zone B (frequency above +3 %): beyond
+    out = interpret_one(rec(frequency_hz=53.0, speed_rpm=1560, voltage_l12_v=412, voltage_l23_v=412,
+                            voltage_l31_v=412))
+    assert out["supply_zone"] == "outside" and "supply_out_of_tolerance" in out["flags"]
+    assert out["supply_state"] == "beyond" and out["verdict"] == "act"
 
 
 def test_pulley_speed_is_inconsistent_and_blames_the_speed():

@@ -64,8 +64,6 @@ def test_slip_torque_at_plus_2_pct_frequency_within_3_pct():
     assert torque == pytest.approx(100.0, abs=3.0)
 
 
-@pytest.mark.xfail(strict=True, reason="engine still passes s * n_s,r and V/V_r on mains; wire "
-                   "slip_method(slip_rpm, ..., flux) for mains as for a drive (physics.load.slip_torque_pu)")
 def test_slip_torque_at_plus_2_pct_frequency_exact():
     n = 1530.0 - 40.0 * 1.02 ** 2
     r = interpret_one(rec(frequency_hz=51.0, speed_rpm=n, tachometer_resolution_rpm=0.01, power_kw=None))

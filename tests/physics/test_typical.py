@@ -108,3 +108,11 @@ def test_docstring_examples_run():
     for module in (ty, torque_speed, efficiency, load):
         result = doctest.testmod(module)
         assert result.failed == 0 and result.attempted > 0, module.__name__
+
+
+def test_minimum_breakdown_missing_pole_count_is_nan_not_an_index_error():
+    # a row without poles (an unparsed nameplate in a batch) gives NaN; before, NaN poles became a
+    # garbage column index and the whole batch failed
+    out = ty.minimum_breakdown_torque_pct([7.5, 7.5], [np.nan, 4.0], ["N", "N"])
+    assert np.isnan(out[0]) and out[1] == pytest.approx(200.0)     # IEC 60034-12 design N, from memory
+    assert np.isnan(ty.breakdown_torque_low_pct(np.nan, 7.5, np.nan, "N"))

@@ -172,12 +172,6 @@ ABOVE_100_PCT = {
         "breakdown_torque_pct": 175.0, "frequency_hz": 18.34, "speed_rpm": 266.25048130922,
         "current_l1_a": 2.2165900653984107, "tachometer_resolution_rpm": 0.97, "current_accuracy_pct": 0.1,
         "voltage_accuracy_pct": 0.1, "power_accuracy_pct": 0.1},
-    "drive with measured power, 14 % load": {
-        "rated_voltage_v": 13720.619093509351, "rated_current_a": 8.208106522579616, "rated_frequency_hz": 60.0,
-        "rated_speed_rpm": 552.0, "rated_power_hp": 216.166083484787, "supply": "drive",
-        "driven_load": "high_breakaway", "breakdown_torque_pct": 302.071528369029, "frequency_hz": 17.95493304573681,
-        "speed_rpm": 177.24601173361157, "current_l1_a": 3.566341612967578, "power_kw": 22.854361438364545,
-        "power_factor": 0.08154963515538852, "voltage_accuracy_pct": 5.3418640310468275},
     "mains, 2 % load": {
         "rated_voltage_v": 5000.0, "rated_current_a": 0.3200995446555806, "rated_frequency_hz": 114.66818917334794,
         "rated_speed_rpm": 1265.9368084737614, "rated_power_hp": 2.287916338593261,
@@ -194,3 +188,25 @@ def test_impossible_efficiency_for_the_slip_is_refused(tech, body):
     assert r.status_code == 400
     error = r.get_json()["error"]
     assert error["field"] == "rated_speed_rpm" and "at most" in error["message"]
+
+
+# Issue 9 (the nameplate rule): this nameplate gives neither efficiency nor power factor, so the
+# efficiency that did not fit its 8 % rated slip was the engine's own typical value, not the user's.
+# It used to be refused (the case above, before); the assumed efficiency now yields to what the slip
+# allows and the reading is interpreted, its efficiency band physical (below 100 % at its top).
+ASSUMED_EFFICIENCY_YIELDS = {
+    "drive with measured power, 14 % load": {
+        "rated_voltage_v": 13720.619093509351, "rated_current_a": 8.208106522579616, "rated_frequency_hz": 60.0,
+        "rated_speed_rpm": 552.0, "rated_power_hp": 216.166083484787, "supply": "drive",
+        "driven_load": "high_breakaway", "breakdown_torque_pct": 302.071528369029, "frequency_hz": 17.95493304573681,
+        "speed_rpm": 177.24601173361157, "current_l1_a": 3.566341612967578, "power_kw": 22.854361438364545,
+        "power_factor": 0.08154963515538852, "voltage_accuracy_pct": 5.3418640310468275},
+}
+
+
+@pytest.mark.parametrize("body", list(ASSUMED_EFFICIENCY_YIELDS.values()), ids=list(ASSUMED_EFFICIENCY_YIELDS))
+def test_assumed_efficiency_yields_to_the_rated_slip(tech, body):
+    r = tech.post("/api/v1/interpret", json=body)
+    assert r.status_code == 200, r.get_json()
+    answer = r.get_json()
+    assert 0 <= answer["efficiency_low_pct"] <= answer["efficiency_pct"] <= answer["efficiency_high_pct"] < 100

@@ -17,8 +17,9 @@ import pytest
 from pydantic import ValidationError
 
 from slipwise import demo
-from slipwise.contract import RESULT_COLUMNS
+from slipwise.contract import RESULT_COLUMNS, RESULT_COLUMNS_1_0
 from slipwise.contract.responses import RESPONSE_MODELS, Result
+from slipwise.web.render import served_result_text
 from tests.service.conftest import MOTOR, REPO, reading_body
 
 CHECKED: set[tuple[str, str, str]] = set()  # (method, documented path, status) validated in this module
@@ -167,3 +168,18 @@ def test_a_drifted_answer_is_refused(check, anon):
                                "uptime_s": 3})
     with pytest.raises(ValidationError, match="uptime_s"):
         check("GET", "/api/v1/health", Fake)
+
+
+def test_results_stored_by_engine_1_0_still_match_the_model():
+    """A result stored by release 2 (engine 1.0.0) is served with its own values, the columns added since as
+    null, and conforms to the model; the stored text is untouched."""
+    rows = json.loads((Path(__file__).parent / "fixtures" / "schema_2_rows.json").read_text())["tables"]["readings"]
+    results = [json.loads(r["result"]) if isinstance(r["result"], str) else r["result"] for r in rows]
+    assert results and all(r.get("engine_version") == "1.0.0" for r in results if r.get("engine_version"))
+    for row, result in zip(rows, results):
+        assert "verdict" not in result       # the fixture is what release 2 wrote
+        text = row["result"] if isinstance(row["result"], str) else json.dumps(row["result"])
+        served = json.loads(served_result_text({"engine_version": row["engine_version"], "result": text}))
+        Result.model_validate(served)
+        assert {k: served[k] for k in result} == result
+        assert all(served[c] is None for c in RESULT_COLUMNS if c not in RESULT_COLUMNS_1_0)

@@ -10,7 +10,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-ENGINE_VERSION = "1.0.0"
+# 1.1.0: verdicts on the band, saturation, breakdown band, (V/f)^2 slip law on mains, IE tables at 60 Hz.
+# A stored result keeps the version that made it; a newer engine never rewrites it.
+ENGINE_VERSION = "1.1.0"
 
 
 @dataclass(frozen=True)
@@ -211,9 +213,22 @@ RESULT_COLUMNS: tuple[str, ...] = (
     "predicted_current_a", "predicted_power_factor",
     "breakdown_torque_now_pct", "starting_margin", "operating_side",
     "error_field", "engine_version",
+    # extensions since engine 1.1.0: verdicts on the band (engine/verdicts.py); absent from results
+    # stored by engine 1.0.0 (see RESULT_COLUMNS_1_0)
+    "verdict", "breakdown_margin_low", "limit_flags",
+    "load_state", "breakdown_state", "supply_state", "voltage_unbalance_state", "current_unbalance_state",
+    "starting_state",
 )
+#: The columns of a result stored by engine 1.0.0 (release 2): every later column may be absent from one.
+RESULT_COLUMNS_1_0: tuple[str, ...] = RESULT_COLUMNS[:RESULT_COLUMNS.index("engine_version") + 1]
+
+#: The verdict words of the ``verdict`` column and the state words of the ``*_state`` columns.
+VERDICT_WORDS: tuple[str, ...] = ("sound", "watch", "act", "retake")
+STATE_WORDS: tuple[str, ...] = ("clear", "at_limit", "beyond")
 TEXT_RESULT_COLUMNS = frozenset({"efficiency_class", "supply_zone", "flags", "findings", "error",
-                                 "operating_side", "error_field", "engine_version"})
+                                 "operating_side", "error_field", "engine_version",
+                                 "verdict", "limit_flags", "load_state", "breakdown_state", "supply_state",
+                                 "voltage_unbalance_state", "current_unbalance_state", "starting_state"})
 INTEGER_RESULT_COLUMNS = frozenset({"poles"})
 
 FLAG_CODES: tuple[str, ...] = (
@@ -229,4 +244,4 @@ CHOICE_FIELDS = {f.name: f for f in NAMEPLATE_CHOICES}
 # Record ids are INTEGER columns: 32-bit on PostgreSQL, so a larger id can never exist.
 MAX_ID = 2 ** 31 - 1
 
-__all__ = ["ENGINE_VERSION", "DESIGNS", "SUPPLIES", "DRIVEN_LOADS", "TAG_MAX_CHARS", "TAG_REFUSED_CATEGORIES", "NAMEPLATE_NUMBERS", "NAMEPLATE_CHOICES", "NAMEPLATE_FIELDS", "TEXT_FIELDS", "READING_NUMBERS", "CURRENT_FIELDS", "VOLTAGE_FIELDS", "READING_FIELDS", "TAKEN_AT_HELP", "REVIEW_DECISIONS", "DECISIONS_NEEDING_COMMENT", "INPUT_FIELDS", "RESULT_COLUMNS", "TEXT_RESULT_COLUMNS", "INTEGER_RESULT_COLUMNS", "FLAG_CODES", "NUMBER_FIELDS", "CHOICE_FIELDS", "MAX_ID", "NumberField", "ChoiceField", "TextField"]
+__all__ = ["ENGINE_VERSION", "DESIGNS", "SUPPLIES", "DRIVEN_LOADS", "TAG_MAX_CHARS", "TAG_REFUSED_CATEGORIES", "NAMEPLATE_NUMBERS", "NAMEPLATE_CHOICES", "NAMEPLATE_FIELDS", "TEXT_FIELDS", "READING_NUMBERS", "CURRENT_FIELDS", "VOLTAGE_FIELDS", "READING_FIELDS", "TAKEN_AT_HELP", "REVIEW_DECISIONS", "DECISIONS_NEEDING_COMMENT", "INPUT_FIELDS", "RESULT_COLUMNS", "RESULT_COLUMNS_1_0", "VERDICT_WORDS", "STATE_WORDS", "TEXT_RESULT_COLUMNS", "INTEGER_RESULT_COLUMNS", "FLAG_CODES", "NUMBER_FIELDS", "CHOICE_FIELDS", "MAX_ID", "NumberField", "ChoiceField", "TextField"]

@@ -49,6 +49,9 @@ class Finding(_Response):
     flag: Optional[str] = Field(description="the flag code the words belong to")
     text: str
     caution: Optional[str] = Field(description="what not to do until the cause is found, where one applies")
+    state: Optional[Literal["beyond", "at_limit"]] = Field(
+        None, description="beyond: the whole band is past the threshold (a flag); at_limit: the band straddles it "
+        "(absent from results stored by engine 1.0.0)")
 
 
 FlagCode = Literal[FLAG_CODES]  # type: ignore[valid-type]

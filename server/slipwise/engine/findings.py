@@ -9,6 +9,7 @@ handful of strings.
 from __future__ import annotations
 
 from ..physics.flags import Thresholds, decode_combination
+from .verdicts import decode_extra
 
 #: Separator between findings (and between cautions) in one CSV cell.
 SEPARATOR = " | "
@@ -70,8 +71,9 @@ def finding_text(code: str, th: Thresholds, outlier: int = -2, on_drive: bool = 
             "the motor.", CAUTION_KEEP_RUNNING),
         "underloaded": (under + " Check the process was at its normal duty when read.", ""),
         "supply_out_of_tolerance": (
-            "Supply voltage or frequency is outside the tolerance the motor is rated for (IEC 60034-1 zone A, "
-            "or NEMA MG 1 +-10 % V, +-5 % f, 10 % combined).", CAUTION_ISOLATE),
+            "Supply voltage or frequency is outside the tolerance the motor is rated for (outside IEC 60034-1 "
+            "zone B, or outside NEMA MG 1 +-10 % V, +-5 % f, 10 % combined even allowing for the voltmeter's "
+            "accuracy).", CAUTION_ISOLATE),
         "voltage_unbalance": (
             f"Voltage unbalance exceeds {th.voltage_unbalance_pct:g} % (NEMA definition): derate the motor by "
             "the derating factor shown; operation above 5 % is not recommended. Look for a high-resistance "
@@ -85,6 +87,46 @@ def finding_text(code: str, th: Thresholds, outlier: int = -2, on_drive: bool = 
             "under load or on a weak supply.", CAUTION_KEEP_RUNNING),
         "readings_inconsistent": (_INCONSISTENT_TEXT.get(outlier, _INCONSISTENT_TEXT[-2]) +
                                   " Take the readings again.", CAUTION_MEASURE),
+    }
+    return texts[code]
+
+
+#: Service factor assumed where the nameplate gives none, said in the overload finding.
+SF_ASSUMED_TEXT = (" The nameplate gives no service factor: 1.0 was assumed, so no load above rated output "
+                   "is allowed even for short periods.")
+
+
+def limit_text(code: str, th: Thresholds, on_drive: bool = False) -> tuple[str, str]:
+    """Plain-language finding and caution for a quantity "at the limit" (its band straddles the threshold)."""
+    basis = "torque" if on_drive else "load"
+    texts = {
+        "overloaded": (
+            f"The {basis} band straddles rated output ({th.overloaded_pct:g} %): the motor may be running at or "
+            "just above its rating; the readings cannot tell which. Keep an eye on it: a kW reading with a power "
+            "analyser narrows the band.", ""),
+        "over_service_factor": (
+            f"The {basis} band reaches the nameplate's service factor: the motor may be using its service-factor "
+            "margin, which is meant for short periods.", ""),
+        "near_breakdown": (
+            f"The pessimistic breakdown margin is exactly {th.near_breakdown_margin:g}: a deep voltage dip or "
+            "load surge could bring the motor close to stalling.", ""),
+        "underloaded": (
+            f"The {basis} band straddles the underload threshold ({th.underloaded_pct:g} %): the motor may be "
+            "oversized for this duty; check the process was at its normal duty when read.", ""),
+        "supply_out_of_tolerance": (
+            "Supply voltage or frequency is at the edge of the motor's tolerance: in IEC 60034-1 zone B (the "
+            "motor may run there but gets hotter than rated; not for long periods), or within the voltmeter's "
+            "accuracy of the NEMA MG 1 limits. Ask for the supply to be brought back to rated.", CAUTION_ISOLATE),
+        "voltage_unbalance": (
+            f"Voltage unbalance is exactly {th.voltage_unbalance_pct:g} % (NEMA definition), where derating "
+            "starts.", ""),
+        "current_unbalance": (
+            f"Current unbalance is exactly {th.current_unbalance_pct:g} %: look at the supply unbalance and the "
+            "connections at the next stop.", CAUTION_ISOLATE),
+        "starting_torque_low": (
+            f"Locked-rotor torque at the measured voltage is {th.starting_margin:g} times the breakaway torque "
+            "at the central load but less at the top of the load band: a restart under full load on a weak "
+            "supply may be slow.", ""),
     }
     return texts[code]
 
@@ -103,15 +145,33 @@ def describe(combinations, th: Thresholds):
     codes : list of tuple of str
         Per combination.
     findings : list of list of dict
-        ``{"flag", "text", "caution"}`` per combination.
+        ``{"flag", "text", "caution", "state"}`` per combination: first the
+        flags ("beyond"), then the codes "at the limit" (see
+        :func:`limit_codes`), each with its ``state``.
     """
     codes, findings = [], []
     for m in combinations:
         row_codes, out, drive, at_sync = decode_combination(m)
+        limits, sf_assumed = decode_extra(m)
         codes.append(row_codes)
-        findings.append([dict(zip(("flag", "text", "caution"), (c,) + finding_text(c, th, out, drive, at_sync)))
-                         for c in row_codes])
+        row = []
+        for c in row_codes:
+            text, caution = finding_text(c, th, out, drive, at_sync)
+            if c == "overloaded" and sf_assumed:
+                text += SF_ASSUMED_TEXT
+            row.append({"flag": c, "text": text, "caution": caution, "state": "beyond"})
+        for c in limits:
+            text, caution = limit_text(c, th, drive)
+            if c == "overloaded" and sf_assumed:
+                text += SF_ASSUMED_TEXT
+            row.append({"flag": c, "text": text, "caution": caution, "state": "at_limit"})
+        findings.append(row)
     return codes, findings
+
+
+def limit_codes(combinations) -> list:
+    """The flag codes "at the limit" of each distinct combination mask (tuples of str)."""
+    return [decode_extra(m)[0] for m in combinations]
 
 
 def findings_text(findings) -> str:

@@ -30,6 +30,35 @@ _plate_cache: LRUCache = LRUCache(maxsize=PLATE_CACHE_SIZE)
 _cache_lock = threading.Lock()
 
 
+#: Largest share of the rated losses an *assumed* efficiency may leave to the rotor copper [-]:
+#: with neither efficiency nor power factor on the nameplate, the typical efficiency is capped at
+#: ``max_efficiency_for_slip(s_r, 0.75)``, a quarter of the losses kept for stator copper, core,
+#: friction and stray load (project judgement; the nameplate check allows 0.9 for the user's own
+#: numbers, :data:`slipwise.physics.efficiency.ROTOR_LOSS_SHARE_MAX`).
+ASSUMED_ROTOR_LOSS_SHARE_MAX = 0.75
+#: Rotor copper share of the losses at the low end of such a capped efficiency's band [-]
+#: (catalogue motors run 0.2-0.5 at rated load; common practice, from memory).
+ASSUMED_ROTOR_LOSS_SHARE_LOW = 0.5
+
+
+def _given(raw, n: int) -> np.ndarray:
+    """Where a cell holds something (not None, NaN or blank text) [bool per row]."""
+    if raw is None:
+        return np.zeros(n, dtype=bool)
+    arr = pd.Series(np.broadcast_to(np.asarray(raw, dtype=object), (n,)), dtype=object)
+    blank = arr.isna() | arr.map(lambda x: isinstance(x, str) and not x.strip())
+    return ~blank.to_numpy(dtype=bool)
+
+
+def _distinct(a: float, b: float) -> tuple[str, str]:
+    """Two numbers as text with just enough decimals that they read differently (when they differ)."""
+    for places in range(1, 7):
+        x, y = f"{a:.{places}f}", f"{b:.{places}f}"
+        if x != y:
+            return x, y
+    return x, y
+
+
 def clear_caches() -> None:
     """Forget every fitted circuit and parsed nameplate (benchmarks start cold with it)."""
     with _cache_lock:
@@ -73,6 +102,8 @@ def parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[Parsed, RowErrors
     for spec in C.NAMEPLATE_CHOICES:
         p[spec.name] = choice_column(column(cols, spec.name, n), n, spec, errors, upper=spec.name == "design")
 
+    # a service factor the nameplate gives (the contract's default 1.0 fills a blank one)
+    p["service_factor_given"] = _given(column(cols, "service_factor", n), n)
     kw, hp = p["rated_power_kw"], p["rated_power_hp"]
     hp_kw = hp * HORSEPOWER_W / KILOWATT_W
     with np.errstate(invalid="ignore", divide="ignore"):
@@ -125,6 +156,12 @@ def parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[Parsed, RowErrors
         swap = neither & ((pf < 0.30) | (pf > 0.97))
         pf = np.where(swap, pf_typ, pf)
         eta = np.where(swap, efficiency.balance_factor(p_out, apparent, pf_typ), eta)
+        # with neither on the nameplate the efficiency is ours, not the user's: it yields to what the
+        # rated slip allows (capped with a margin) instead of refusing the nameplate
+        eta_cap = efficiency.max_efficiency_for_slip(s_r, ASSUMED_ROTOR_LOSS_SHARE_MAX)
+        capped = neither & (eta > eta_cap)
+        eta = np.where(capped, eta_cap, eta)
+        pf = np.where(capped, efficiency.balance_factor(p_out, apparent, eta), pf)
         expected_i = efficiency.line_current_a(p_out, v_r, np.where(np.isnan(pf_np), pf, pf_np), eta)
         bad_balance = ~np.isnan(pf) & ((pf < 0.30) | (pf > 0.97) | (eta < 0.40) | (eta > 0.99)
                                        | (~np.isnan(pf_np) & ~np.isnan(eta_np) & (np.abs(pf - pf_np) > 0.12)))
@@ -139,17 +176,29 @@ def parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[Parsed, RowErrors
         rotor_loss = efficiency.rotor_copper_loss_w(s_r, p_out)
         impossible = ~bad_balance & ~np.isnan(losses) & (rotor_loss > efficiency.ROTOR_LOSS_SHARE_MAX * losses)
         eta_max = efficiency.max_efficiency_for_slip(s_r)
-    given = np.where(np.isnan(eta_np), "the efficiency implied by its power, current and power factor",
-                     "rated_efficiency_pct")
-    errors.add(impossible, "rated_speed_rpm",
-               lambda i: f"rated_speed_rpm = {n_r[i]:g} means a rated slip of {100 * s_r[i]:.3g} %, which allows "
-                         f"at most {100 * eta_max[i]:.3g} % efficiency (rotor copper loss alone is s/(1-s) of the "
-                         f"output), but {given[i]} is {100 * eta[i]:.3g} %; check the rated speed, current and "
-                         "power factor on the nameplate")
+    # only the user's own numbers are left to contradict each other here: name them
+    def impossible_text(i):
+        if np.isnan(eta_np[i]):
+            given = (f"the efficiency implied by rated_power_kw = {p['rated_kw'][i]:g}, rated_voltage_v = "
+                     f"{v_r[i]:g}, rated_current_a = {i_r[i]:g} and rated_power_factor = {pf_np[i]:g}")
+        else:
+            given = "rated_efficiency_pct"
+        most, value = _distinct(100 * eta_max[i], 100 * eta[i])
+        return (f"rated_speed_rpm = {n_r[i]:g} means a rated slip of {100 * s_r[i]:.3g} %, which allows at most "
+                f"{most} % efficiency (rotor copper loss alone is s/(1-s) of the output), but {given} is "
+                f"{value} %; check these numbers on the nameplate")
+    errors.add(impossible, "rated_speed_rpm", impossible_text)
     p["eta_used"], p["pf_used"] = eta, pf
-    bd = np.where(np.isnan(p["breakdown_torque_pct"]),
-                  typical.lookup(typical.BREAKDOWN_TORQUE_PCT, p["design"]), p["breakdown_torque_pct"])
+    # an assumed efficiency capped by the slip: the true one may lie anywhere from where the rotor copper
+    # takes half the losses up to the physical limit (the loss budgets' band spans it)
+    p["eta_band_low"] = np.where(capped, efficiency.max_efficiency_for_slip(s_r, ASSUMED_ROTOR_LOSS_SHARE_LOW), eta)
+    p["eta_band_high"] = np.where(capped, efficiency.max_efficiency_for_slip(s_r), eta)
+    given_bd = p["breakdown_torque_pct"]
+    bd = np.where(np.isnan(given_bd), typical.typical_breakdown_torque_pct(p["rated_kw"], poles, p["design"]),
+                  given_bd)
     p["bd_ratio"] = bd / 100.0
+    p["bd_pct"] = bd
+    p["bd_low_pct"] = typical.breakdown_torque_low_pct(given_bd, p["rated_kw"], poles, p["design"])
     p["x1_share"] = typical.lookup(typical.LEAKAGE_STATOR_SHARE, p["design"])
     p["lrt_pct"] = np.where(np.isnan(p["locked_rotor_torque_pct"]),
                             typical.lookup(typical.LOCKED_ROTOR_TORQUE_PCT, p["design"]), p["locked_rotor_torque_pct"])
@@ -191,10 +240,12 @@ def _derive_nameplates(p: Parsed, ok: np.ndarray) -> None:
     sub = Parsed({k: np.asarray(v)[idx] for k, v in p.items()})
     circuit = _fit_for_rows(sub)
     p_out = sub["rated_kw"] * KILOWATT_W
-    budgets = tuple(efficiency.rated_loss_budget(p_out, sub["eta_used"], sub["rated_slip"], share,
-                                                 sub["fw_share"])
-                    for share in (typical.FIXED_LOSS_SHARE, typical.FIXED_LOSS_SHARE_LOW,
-                                  typical.FIXED_LOSS_SHARE_HIGH))
+    # the band's budgets: a low fixed-loss share with the lowest credible efficiency (most losses) and a
+    # high one with the highest (equal to the central efficiency unless it was assumed and capped)
+    budgets = tuple(efficiency.rated_loss_budget(p_out, sub[eta], sub["rated_slip"], share, sub["fw_share"])
+                    for share, eta in ((typical.FIXED_LOSS_SHARE, "eta_used"),
+                                       (typical.FIXED_LOSS_SHARE_LOW, "eta_band_low"),
+                                       (typical.FIXED_LOSS_SHARE_HIGH, "eta_band_high")))
     i0_r = ckt.no_load_current_a(circuit, sub["rated_voltage_v"], sub["rated_frequency_hz"])
     p["_valid_index"] = idx
     p["_valid"] = sub

@@ -20,7 +20,8 @@ from ..physics import circuit as ckt
 from ..physics import efficiency, load, speed, supply, torque_speed, typical
 from ..physics.flags import Thresholds, combination_mask
 from ..physics.units import KILOWATT_W
-from .findings import describe, findings_text
+from .findings import describe, findings_text, limit_codes
+from .verdicts import judge
 from .inputs import Parsed, column, column_length
 from .nameplate import group_nameplates, nameplates
 from .readings import parse_readings
@@ -106,13 +107,16 @@ def _interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None) -
             else:
                 out[col][idx] = values
         flag_text = np.array([";".join(c) for c in codes], dtype=object)
+        limit_text = np.array([";".join(c) for c in limit_codes(combinations)], dtype=object)
         find_text = np.array([findings_text(fl) for fl in finds], dtype=object)
         if all_valid:
             out["flags"], out["findings"] = flag_text[combo], find_text[combo]
+            out["limit_flags"] = limit_text[combo]
             combo_per_row = combo
         else:
             out["flags"][idx] = flag_text[combo]
             out["findings"][idx] = find_text[combo]
+            out["limit_flags"][idx] = limit_text[combo]
             combo_per_row[idx] = combo
     out["error"] = errors.message
     out["error_field"] = errors.field
@@ -178,12 +182,14 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
     current_ratio = i_meas / i_r
 
     # --- load, three methods ------------------------------------------------------------
-    slip_equiv = np.where(on_drive, slip_rpm, s * ns_r)
-    _, out_slip = load.slip_method(slip_equiv, s_r * ns_r, np.where(on_drive, flux, v / v_r), speed_ratio,
+    # one law on mains and drive: torque ~ (V/f)^2 x slip speed at the measured frequency
+    _, out_slip = load.slip_method(slip_rpm, s_r * ns_r, flux, speed_ratio,
                                    rated_kw, r["tachometer_resolution_rpm"], r["voltage_accuracy_pct"],
                                    r["minutes_running"], on_drive)
-    i0 = load.magnetising_current_a(i0_r, flux)
-    out_current = load.current_method(i_meas, i_r, i0, i0_r, flux, speed_ratio, r["current_accuracy_pct"])
+    # the no-load current at the present flux, with the iron's saturation and its band
+    i0, i0_low, i0_high = typical.saturated_no_load_current(i0_r, flux)
+    out_current = load.current_method(i_meas, i_r, i0, i0_r, flux, speed_ratio, r["current_accuracy_pct"],
+                                      no_load_current_low_a=i0_low, no_load_current_high_a=i0_high)
     central = budgets[0]
     core_now, fw_now, stator_now = efficiency.scaled_losses_w(central, flux, freq_ratio, speed_ratio, current_ratio)
     pk = r["power_kw"] * KILOWATT_W
@@ -209,7 +215,11 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
         t_rated = torque_speed.torque_nm(p_rated_w, n_r)
         t_fw = torque_speed.torque_nm(fw_now, n_meas)
         bd_pct = torque_speed.shaft_breakdown_torque_pct(t_em_max, t_fw, t_rated)
-        margin = torque_speed.breakdown_margin(bd_pct, np.maximum(100.0 * torque_pu, 1.0))
+        torque_low_pct = torque_speed.torque_from_load(100.0 * fused.low, speed_ratio)
+        torque_high_pct = torque_speed.torque_from_load(100.0 * fused.high, speed_ratio)
+        # central: the circuit's breakdown; pessimistic: the design's lowest credible one at the top of the load band
+        margin, margin_low = torque_speed.breakdown_margin_band(bd_pct, pl("bd_pct"), pl("bd_low_pct"),
+                                                                100.0 * torque_pu, torque_high_pct)
         # motor slope from the Kloss form through the circuit's breakdown point (documented simplification)
         motor_slope = torque_speed.kloss_slope_nm_per_rpm(s_run, s_max, bd_pct / 100.0 * t_rated, ns)
         load_slope = torque_speed.load_torque_slope(pl("driven_load"), n_meas, torque_pu * t_rated)
@@ -224,11 +234,13 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
         outlier = np.where(speed_suspect, 0, outlier)
         starting = np.where(on_drive | above, np.nan, torque_speed.starting_margin(
             pl("lrt_pct"), v, v_r, pl("breakaway_share"), 100.0 * torque_pu))
+        starting_low = np.where(on_drive | above, np.nan, torque_speed.starting_margin(
+            pl("lrt_pct"), v, v_r, pl("breakaway_share"), torque_high_pct))
 
     # --- efficiency --------------------------------------------------------------------------
     eta, eta_lo, eta_hi = efficiency.efficiency_band(
         budgets, load_pu * p_rated_w, fused.low * p_rated_w, fused.high * p_rated_w, flux, freq_ratio,
-        speed_ratio, current_ratio, r["current_accuracy_pct"], s)
+        speed_ratio, current_ratio, r["current_accuracy_pct"], s, rated_power_kw=rated_kw)
 
     # --- supply --------------------------------------------------------------------------------
     vu = supply.max_deviation_unbalance_pct(r["voltage_l12_v"], r["voltage_l23_v"], r["voltage_l31_v"])
@@ -239,27 +251,24 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
     f_dev = np.where(on_drive, np.nan, supply.deviation_pct(f, f_r))
     zone_code = supply.iec_zone_code(v_dev, f_dev)
     zone_code = np.where(on_drive, supply.DRIVE_ZONE_CODE, zone_code)
-    out_of_tol = ~on_drive & np.where(pl("is_nema"), ~supply.within_nema_tolerance(v_dev, f_dev), zone_code != 1)
 
-    # --- flags -----------------------------------------------------------------------------------
-    basis = np.where(on_drive, torque_pu, load_pu) * 100.0
+    # --- states on the verdict scale and the flags (state "beyond") ------------------------------
+    basis_low = np.where(on_drive, torque_low_pct, 100.0 * fused.low)
+    basis_high = np.where(on_drive, torque_high_pct, 100.0 * fused.high)
     # on a drive a fan or pump turns down by design: judge underload on the torque it would
     # need at rated speed by its square law (common practice)
-    under_basis = np.where(on_drive & pl("is_variable_torque"), torque_speed.variable_torque(n_r, n_meas, basis), basis)
-    with np.errstate(invalid="ignore"):
-        flag_arrays = {
-            "speed_above_synchronous": above,
-            "overloaded": basis > th.overloaded_pct,
-            "over_service_factor": basis > 100.0 * pl("service_factor"),
-            "near_breakdown": ~above & ((margin < th.near_breakdown_margin) | unstable),
-            "underloaded": under_basis < th.underloaded_pct,
-            "supply_out_of_tolerance": out_of_tol,
-            "voltage_unbalance": vu > th.voltage_unbalance_pct,
-            "current_unbalance": iu > th.current_unbalance_pct,
-            "readings_inconsistent": ~above & ~consistent,
-            "starting_torque_low": pl("needs_breakaway") & (starting < th.starting_margin),
-        }
-    mask = combination_mask(flag_arrays, np.where(consistent, -1, outlier), on_drive, at_sync)
+    project = on_drive & pl("is_variable_torque")
+    under_low, under_high = (np.where(project, torque_speed.variable_torque(n_r, n_meas, b), b)
+                             for b in (basis_low, basis_high))
+    states = judge(th, above=above, at_sync=at_sync, consistent=consistent, basis_low=basis_low,
+                   basis_high=basis_high, under_low=under_low, under_high=under_high,
+                   service_factor=pl("service_factor"), sf_given=pl("service_factor_given"),
+                   margin_low=margin_low, unstable=unstable, zone_code=zone_code, is_nema=pl("is_nema"),
+                   on_drive=on_drive, v_dev=v_dev, f_dev=f_dev, voltage_accuracy_pct=r["voltage_accuracy_pct"],
+                   vu=vu, iu=iu, starting=starting, starting_low=starting_low,
+                   needs_breakaway=pl("needs_breakaway"))
+    mask = combination_mask(states.flags, np.where(consistent, -1, outlier), on_drive, at_sync)
+    mask |= states.extra_bits
 
     res = {
         "poles": poles, "sync_speed_rpm": ns, "slip_pct": 100.0 * s, "slip_rpm": slip_rpm,
@@ -267,16 +276,17 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
         "load_slip_pct": 100.0 * methods[0].value, "load_current_pct": 100.0 * methods[1].value,
         "load_power_pct": 100.0 * methods[2].value,
         "output_kw": load_pu * rated_kw,
-        "torque_pct": 100.0 * torque_pu, "torque_low_pct": torque_speed.torque_from_load(100.0 * fused.low, speed_ratio),
-        "torque_high_pct": torque_speed.torque_from_load(100.0 * fused.high, speed_ratio),
+        "torque_pct": 100.0 * torque_pu, "torque_low_pct": torque_low_pct, "torque_high_pct": torque_high_pct,
         "efficiency_pct": 100.0 * eta, "efficiency_low_pct": 100.0 * eta_lo, "efficiency_high_pct": 100.0 * eta_hi,
         "voltage_unbalance_pct": vu, "voltage_unbalance_factor_pct": vuf, "current_unbalance_pct": iu,
         "derating_factor": derate, "voltage_deviation_pct": v_dev, "frequency_deviation_pct": f_dev,
         "supply_zone_code": zone_code,
         "breakdown_margin": np.where(above, np.nan, margin),
+        "breakdown_margin_low": np.where(above, np.nan, margin_low),
         "predicted_current_a": op.current_a, "predicted_power_factor": op.power_factor,
         "breakdown_torque_now_pct": bd_pct, "starting_margin": starting,
         "operating_side_code": np.where(has_point, np.where(stable, 1, 2), 0),
+        **states.columns,
     }
     return res, mask
 

@@ -50,6 +50,7 @@ RESULT_DECIMALS: dict[str, int] = {
     "current_unbalance_pct": 2,
     "voltage_deviation_pct": 2, "frequency_deviation_pct": 2,           # 0.01 Hz in 50 Hz is 0.02 %
     "derating_factor": 2, "breakdown_margin": 2, "starting_margin": 2,  # margins 0.01
+    "breakdown_margin_low": 2,
     "predicted_current_a": 2,                                           # currents 0.01 A
     "predicted_power_factor": 3,
 }
@@ -132,6 +133,12 @@ def _py(value):
     return value
 
 
+#: Text result columns given as null (not "") in a record when blank: not applicable or not judged.
+_BLANK_IS_NULL = frozenset({"error", "error_field", "operating_side", "efficiency_class", "verdict", "load_state",
+                            "breakdown_state", "supply_state", "voltage_unbalance_state", "current_unbalance_state",
+                            "starting_state"})
+
+
 def row_record(out: dict, i: int) -> dict:
     """Row ``i`` of :func:`interpret_columns`' output as a record."""
     row = {}
@@ -139,8 +146,7 @@ def row_record(out: dict, i: int) -> dict:
         value = _py(out[col][i])
         if col == "poles" and value is not None:
             value = int(value)
-        if col in C.TEXT_RESULT_COLUMNS and value == "" and col in ("error", "error_field", "operating_side",
-                                                                    "efficiency_class"):
+        if col in C.TEXT_RESULT_COLUMNS and value == "" and col in _BLANK_IS_NULL:
             value = None
         row[col] = value
     k = int(out["_combination"][i])

@@ -230,7 +230,7 @@ def minimum_breakdown_torque_pct(rated_power_kw, poles, design):
     """
     p, n, d = np.broadcast_arrays(np.asarray(rated_power_kw, dtype=float), np.asarray(poles, dtype=float),
                                   np.asarray(design))
-    col = _pole_col(n)
+    col = _pole_col(np.nan_to_num(n, nan=4.0))     # a NaN row is masked to NaN below
     hp = p * KILOWATT_W / HORSEPOWER_W
     with np.errstate(invalid="ignore"):
         # kW equivalents of hp ratings are rounded (0.75 kW = 1.006 hp): 2 % counts as the rating

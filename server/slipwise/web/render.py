@@ -2,7 +2,9 @@
 
 A reading's stored ``inputs`` and ``result`` are JSON text already; they are
 spliced into the response without being parsed and written again, which keeps
-the day's log fast.
+the day's log fast. A result stored by an earlier engine is served as it was
+given, with the columns added since shown as null (not computed by that engine;
+the stored text itself is never rewritten).
 """
 
 from __future__ import annotations
@@ -10,6 +12,7 @@ from __future__ import annotations
 import json
 from typing import Any, Iterable, Mapping
 
+from slipwise.contract import ENGINE_VERSION, RESULT_COLUMNS
 from slipwise.services.motors import MotorRecord
 from slipwise.services.readings import ReadingRecord, Review
 from slipwise.store.motors import REVISION_FIELDS
@@ -35,7 +38,20 @@ def reading_json(row: Mapping[str, Any]) -> str:
             "received_at": row["received_at"].isoformat(), "engine_version": row["engine_version"],
             "supersedes": row["supersedes_id"], "superseded_by": row["superseded_by"],
             "review": _review(row)}
-    return _dumps(head)[:-1] + ',"inputs":' + row["inputs"] + ',"result":' + row["result"] + "}"
+    return _dumps(head)[:-1] + ',"inputs":' + row["inputs"] + ',"result":' + served_result_text(row) + "}"
+
+
+def served_result_text(row: Mapping[str, Any]) -> str:
+    """The stored result as the API serves it: every column of this release, null where the engine
+    that made the result did not compute it."""
+    text = row["result"]
+    if row["engine_version"] == ENGINE_VERSION:
+        return text
+    result = json.loads(text)
+    missing = [c for c in RESULT_COLUMNS if c not in result]
+    if not missing:
+        return text
+    return _dumps({**result, **{c: None for c in missing}})
 
 
 def reading_record_json(record: ReadingRecord) -> str:
