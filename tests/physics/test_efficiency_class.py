@@ -383,19 +383,25 @@ def test_classes_may_vary_per_row():
 
 
 def test_one_million_rows_well_under_a_second():
+    """Vectorised: a million rows cost a bounded multiple of sorting them (a ratio measured in the same
+    process, so a slow or busy machine does not fail it; about 35x here, ~0.57 s against 16 ms; a
+    per-row Python loop would be past 1000x)."""
     n = 1_000_000
     rng = np.random.default_rng(3)
     p = np.exp(rng.uniform(np.log(0.1), np.log(1100.0), n))   # mostly between rows
     poles = rng.choice([2, 4, 6, 8, 12], n)
     freq = rng.choice([50.0, 60.0], n)
     eff = rng.uniform(50.0, 98.0, n)
-    best = np.inf
-    for _ in range(2):
+    best = baseline = np.inf
+    for _ in range(3):
+        t0 = time.perf_counter()
+        np.sort(p)
+        baseline = min(baseline, time.perf_counter() - t0)
         t0 = time.perf_counter()
         out = efficiency_class(p, poles, freq, eff)
         best = min(best, time.perf_counter() - t0)
     assert out.shape == (n,)
-    assert best < 1.0, best
+    assert best < 100.0 * baseline, (best, baseline)
 
 
 # --- typical_efficiency_pct -------------------------------------------------
