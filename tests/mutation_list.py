@@ -115,6 +115,18 @@ MUTATIONS = (
              "capped = neither & (eta > eta_cap)",
              "capped = neither & (eta > 2.0)",
              ("tests/engine/test_verdicts.py",)),
+    Mutation("M17", "a method clipped at zero keeps the floor as its low-side width in the fusion", PHYS + "load.py",
+             "s_lo_open = np.where(v <= lo, np.maximum(s_lo, s_hi), s_lo)",
+             "s_lo_open = s_lo",
+             ("tests/physics/test_load.py", "tests/bench/test_virtual_bench.py")),
+    Mutation("M18", "a power reading's last stated digit left out of its accuracy", ENGINE,
+             'meter.reading_accuracy_pct(r["power_accuracy_pct"], r["power_kw"])',
+             'r["power_accuracy_pct"]',
+             ("tests/bench/test_virtual_bench.py",)),
+    Mutation("M19", "the rounding to the stated digit taken as a quarter of the step, not half", PHYS + "meter.py",
+             "rounding = 100.0 * 0.5 * stated_resolution(x) / np.abs(x)",
+             "rounding = 100.0 * 0.25 * stated_resolution(x) / np.abs(x)",
+             ("tests/physics/test_meter.py",)),
 )
 
 

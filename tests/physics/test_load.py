@@ -138,6 +138,25 @@ def test_fuse_weights_by_uncertainty_and_finds_outlier():
     assert not consistent[0] and outlier[0] == -2        # two methods: culprit ambiguous
 
 
+def test_fuse_method_clipped_at_zero_does_not_own_the_low_side():
+    # the current method below the modelled no-load current reads 0 [0, 0.185]: it measured
+    # nothing below its zero, so the fused low side counts it as +-0.0926 (its high side's
+    # 2-sigma width), not as the 0.1 % floor (a 200 kW motor at 10 % load read 10.3 % with a
+    # band bottom at 10.1 % for a true 10.0 %, virtual bench row 200kW-V95-f102-L10)
+    clipped = load.Estimate(np.array([0.0]), np.array([0.0]), np.array([0.185]))
+    power = load.Estimate(np.array([0.1047]), np.array([0.0946]), np.array([0.1123]))
+    fused, _, _ = load.fuse([clipped, power])
+    s_lo = np.array([0.185 / 2, (0.1047 - 0.0946) / 2])     # 2-sigma half-widths, low side
+    half_lo = 2.0 / np.sqrt((1.0 / s_lo ** 2).sum())
+    assert fused.value[0] - fused.low[0] == pytest.approx(half_lo)
+    assert fused.value[0] - fused.low[0] > 0.009              # the floor would give 0.002
+    # a method not at zero keeps its own low side (the per-side quadrature as before)
+    low_side = load.Estimate(np.array([0.05]), np.array([0.0]), np.array([0.185]))
+    fused2, _, _ = load.fuse([low_side, power])
+    s_lo2 = np.array([0.05 / 2, (0.1047 - 0.0946) / 2])
+    assert fused2.value[0] - fused2.low[0] == pytest.approx(2.0 / np.sqrt((1.0 / s_lo2 ** 2).sum()))
+
+
 def test_array_equals_scalar():
     slips = np.array([10.0, 30.0, 55.0])
     arr = slip_load(slips, 50.0)[0]

@@ -11,8 +11,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 # 1.1.0: verdicts on the band, saturation, breakdown band, (V/f)^2 slip law on mains, IE tables at 60 Hz.
+# 1.1.1: load band: a kW reading good to half its last stated digit; a method clipped at zero in the fusion.
 # A stored result keeps the version that made it; a newer engine never rewrites it.
-ENGINE_VERSION = "1.1.0"
+ENGINE_VERSION = "1.1.1"
 
 
 @dataclass(frozen=True)

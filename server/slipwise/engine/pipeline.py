@@ -17,7 +17,7 @@ import pandas as pd
 
 from .. import contract as C
 from ..physics import circuit as ckt
-from ..physics import efficiency, load, speed, supply, torque_speed, typical
+from ..physics import efficiency, load, meter, speed, supply, torque_speed, typical
 from ..physics.flags import Thresholds, combination_mask
 from ..physics.units import KILOWATT_W
 from .findings import describe, findings_text, limit_codes
@@ -197,7 +197,8 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
     acc_vipf = load.input_power_accuracy_pct(r["voltage_accuracy_pct"], r["current_accuracy_pct"], r["power_factor"])
     share = typical.FIXED_LOSS_SHARE
     out_power = load.input_power_method(
-        p_in, np.where(np.isnan(pk), acc_vipf, r["power_accuracy_pct"]), core_now, fw_now, stator_now, s,
+        p_in, np.where(np.isnan(pk), acc_vipf, meter.reading_accuracy_pct(r["power_accuracy_pct"], r["power_kw"])),
+        core_now, fw_now, stator_now, s,
         p_rated_w, fixed_loss_band=(typical.FIXED_LOSS_SHARE_LOW / share, typical.FIXED_LOSS_SHARE_HIGH / share))
 
     methods = [load.Estimate(*(np.where(above, np.nan, a) for a in e)) for e in (out_slip, out_current, out_power)]

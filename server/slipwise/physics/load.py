@@ -351,7 +351,9 @@ def fuse(estimates):
     fused : Estimate
         Inverse-variance weighted value; each side's half-width is the
         quadrature combination of the methods' half-widths on that side
-        (taken as 2-sigma limits). With one method it is that method.
+        (taken as 2-sigma limits); a method whose value is clipped at zero
+        counts its high side's width on its low side too. With one method it
+        is that method.
     consistent : numpy.ndarray of bool
         False where two methods disagree by more than their bands allow.
     outlier : numpy.ndarray of int
@@ -366,13 +368,17 @@ def fuse(estimates):
     floor = 1e-3  # 0.1 % of rated: keeps a method with a zero-width band from owning the fusion
     s_lo = np.maximum((v - lo) / 2.0, floor)
     s_hi = np.maximum((hi - v) / 2.0, floor)
+    # a method clipped at zero (the current method where the current is below the modelled
+    # no-load current) measured nothing below its zero: its low side is its high side's width,
+    # not the floor, which would otherwise own the fused low side (0.2 % wide at 10 % load)
+    s_lo_open = np.where(v <= lo, np.maximum(s_lo, s_hi), s_lo)
     sigma = 0.5 * (s_lo + s_hi)
     ok = np.isfinite(v) & np.isfinite(sigma)
     w = np.where(ok, 1.0 / sigma ** 2, 0.0)
     wsum = w.sum(axis=0)
     with np.errstate(invalid="ignore", divide="ignore"):
         value = np.where(ok, w * np.where(ok, v, 0.0), 0.0).sum(axis=0) / wsum
-        half_lo = 2.0 * np.sqrt(1.0 / np.where(ok, 1.0 / s_lo ** 2, 0.0).sum(axis=0))
+        half_lo = 2.0 * np.sqrt(1.0 / np.where(ok, 1.0 / s_lo_open ** 2, 0.0).sum(axis=0))
         half_hi = 2.0 * np.sqrt(1.0 / np.where(ok, 1.0 / s_hi ** 2, 0.0).sum(axis=0))
     value = np.where(wsum > 0, value, np.nan)
     fused = Estimate(np.clip(value, 0, None), np.clip(value - half_lo, 0, None), value + half_hi)
