@@ -15,6 +15,7 @@ from typing import Any, Iterator, Mapping
 
 from sqlalchemy import RowMapping
 
+from slipwise.contract import DECISIONS_NEEDING_COMMENT
 from slipwise.store import audit
 from slipwise.store import motors as store_motors
 from slipwise.store import readings as store
@@ -164,7 +165,7 @@ def review_reading(db: Database, user: Mapping[str, Any], reading_id: int, decis
     """Append a supervisor's review. A decision other than accepted needs a comment."""
     if decision not in DECISIONS:
         raise ValidationError("decision must be one of " + ", ".join(DECISIONS), "decision")
-    if decision != "accepted" and not comment:
+    if decision in DECISIONS_NEEDING_COMMENT and not comment:
         raise ValidationError(f"comment is required for {decision}: text of 1 to 2000 characters", "comment")
     with db.write() as conn:
         if store.motor_of(conn, reading_id) is None:
