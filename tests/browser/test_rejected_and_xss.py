@@ -20,6 +20,9 @@ def test_rejected_reading_is_shown_kept_and_corrected(new_context, service):
     ctx = new_context(TABLET)
     page = ctx.new_page()
     sign_in(page, "tess")
+    # the technician opens the motor list upstairs first: that saves it for offline use (going offline
+    # before the list arrived left the form nothing to show, a race CI once lost)
+    page.wait_for_selector(f"#motor-list button[data-id='{motor['id']}']")
     ctx.set_offline(True)  # entered in the basement...
     page.goto(f"/#/motor/{motor['id']}")
     page.wait_for_selector("#reading-form")
