@@ -52,13 +52,18 @@ export function numberField(f, value, prefix = "f") {
     h("div", { class: "input-unit" }, input, h("span", { class: "unit", "aria-hidden": "true" }, f.unit)),
     h("span", { class: "sr-only", id: `${id}-unit` }, f.unit), hint, error, check);
   input.setAttribute("aria-describedby", `${id}-unit ${hintId} ${errId} ${chkId}`);
-  const validate = () => {
+  // A field says it is wrong only once the technician has been in it (or has pressed submit): a blank
+  // form must not open with every required field already red.
+  let touched = input.value !== "";
+  const validate = (show = touched) => {
     const r = parseField(f, input.value);
-    error.textContent = r.error || "";
-    input.setAttribute("aria-invalid", r.error ? "true" : "false");
+    const shown = show ? r.error || "" : "";
+    error.textContent = shown;
+    input.setAttribute("aria-invalid", shown ? "true" : "false");
     return r;
   };
-  input.addEventListener("input", validate);
+  input.addEventListener("input", () => { touched = true; validate(); });
+  input.addEventListener("blur", () => { if (input.value !== "") touched = true; validate(); });
   return { f, el, input, error, check, validate };
 }
 
@@ -168,7 +173,7 @@ export async function renderMotorForm(el) {
     }
     for (const [name, fld] of Object.entries(nums)) {
       if ((name === "rated_power_kw" && unit !== "kw") || (name === "rated_power_hp" && unit !== "hp")) continue;
-      const r = fld.validate();
+      const r = fld.validate(true);
       if (name === `rated_power_${unit}` && r.value == null && !r.error) {
         fld.error.textContent = "Rated output is needed.";
         fld.input.setAttribute("aria-invalid", "true");
@@ -221,11 +226,11 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
   const formError = h("p", { class: "error", role: "alert", id: "reading-error" });
   const submit = h("button", { class: "btn btn-main", type: "submit", id: "submit-reading" }, opts.correcting ? "Send corrected reading" : "Interpret reading");
 
-  const readValues = () => {
+  const readValues = (showAll = false) => {
     const out = {};
     let firstBad = null;
     for (const fld of Object.values(fields)) {
-      const r = fld.validate();
+      const r = showAll ? fld.validate(true) : fld.validate();
       if (r.error && !firstBad) firstBad = fld.input;
       if (r.value != null && !r.error) out[fld.f.name] = r.value;
     }
@@ -256,7 +261,7 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
   form.addEventListener("submit", async (ev) => {
     ev.preventDefault();
     formError.textContent = "";
-    const { out, firstBad } = readValues();
+    const { out, firstBad } = readValues(true);
     if (firstBad) {
       formError.textContent = "Some values are outside their allowed range; see the message under the field.";
       firstBad.focus();
@@ -299,7 +304,7 @@ export async function renderPending(el, clientId, seq) {
   let entry = await outbox.get(clientId);
   if (!entry) {
     clear(el, h("h1", { tabindex: "-1" }, "Reading sent"), h("p", {}, "This reading is no longer in the outbox: the server has it."),
-      h("a", { class: "btn", href: "#/mine" }, "My day"));
+      h("a", { class: "btn", href: "#/mine" }, "My readings"));
     return;
   }
   const status = h("p", { class: "panel", id: "send-state", role: "status" }, "Sending to the server…");
@@ -381,7 +386,7 @@ export async function renderCorrection(el, clientId, seq) {
   return renderReadingForm(el, String(entry.motor_id), seq, { values, supersedes, correcting: entry, serverError: entry.error });
 }
 
-// --- My day -----------------------------------------------------------------------------------------------
+// --- My readings ---------------------------------------------------------------------------------------
 export async function renderMine(el, _arg, seq) {
   const date = localDate();
   let readings = null, note = "";
@@ -398,7 +403,7 @@ export async function renderMine(el, _arg, seq) {
   }
   if (!routeIsCurrent(seq)) return;
   const waiting = await outbox.all();
-  clear(el, h("h1", { tabindex: "-1" }, "My day"),
+  clear(el, h("h1", { tabindex: "-1" }, "My readings"),
     h("p", { class: "muted" }, `${date}: ${readings.length} stored reading(s)${note}, ${waiting.length} in the outbox.`),
     readings.length ? h("ul", { class: "entries", id: "mine-list" }, readings.slice().reverse().map((r) => {
       const dec = r.review ? r.review.decision : "none";

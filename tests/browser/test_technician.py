@@ -209,3 +209,25 @@ def test_phone_width_reading_and_result(new_context, service):
     wait_until(page, "document.querySelector('img.picture').complete")
     assert page.evaluate("document.documentElement.scrollWidth") <= PHONE["width"]
     shot(page, "phone-03-result")
+
+
+def test_blank_form_is_not_red_until_touched_or_sent(new_context, service):
+    """A blank reading form opens without errors; a field turns red once typed in wrongly, and every
+    missing required field does so when the technician presses send."""
+    motor = service.motor("P-110 blank form pump")
+    ctx = new_context(TABLET)
+    page = ctx.new_page()
+    sign_in(page, "tess")
+    assert page.text_content("#tabs a[data-screen=mine]").strip() == "My readings"  # our own tab name
+    page.goto(f"/#/motor/{motor['id']}")
+    page.wait_for_selector("#reading-form")
+    assert page.locator("#reading-form [aria-invalid=true]").count() == 0
+    assert page.evaluate("[...document.querySelectorAll('#reading-form p.error')].every(p => p.textContent === '')")
+    page.fill("#rd-speed_rpm", "99999")  # typed in: judged at once
+    assert page.get_attribute("#rd-speed_rpm", "aria-invalid") == "true"
+    assert page.get_attribute("#rd-frequency_hz", "aria-invalid") == "false"  # not touched yet
+    page.fill("#rd-speed_rpm", "")
+    page.click("#submit-reading")  # sent blank: now every missing required field says so
+    assert page.get_attribute("#rd-frequency_hz", "aria-invalid") == "true"
+    assert page.evaluate("document.activeElement.id") == "rd-frequency_hz"
+    assert service.readings_of(motor["id"]) == []
