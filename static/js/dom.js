@@ -47,6 +47,18 @@ export function fmt(x, digits = 1) {
   return Number(x).toFixed(digits);
 }
 
+/** A value with its unit, or a bare dash when there is none (never "– %"). */
+export function qty(x, digits, unit) {
+  if (x === null || x === undefined || Number.isNaN(x)) return "–";
+  return unit ? `${fmt(x, digits)} ${unit}` : fmt(x, digits);
+}
+
+/** A ratio read as "so many times": 3.55× (the number first, the sign after it). */
+export function times(x, digits = 2) {
+  if (x === null || x === undefined || Number.isNaN(x)) return "–";
+  return `${fmt(x, digits)}×`;
+}
+
 export function localDate(d = new Date()) {
   const p = (n) => String(n).padStart(2, "0");
   return `${d.getFullYear()}-${p(d.getMonth() + 1)}-${p(d.getDate())}`;

@@ -1,7 +1,7 @@
 // A reading's result, drawn so that a technician reads it in five seconds: the load and its band
 // against the limits, the findings as sentences with their cautions, supply quality, margins.
 
-import { fmt, h, s } from "./dom.js";
+import { fmt, h, qty, s, times } from "./dom.js";
 
 // The thresholds the bar is drawn with: the server's defaults (server/physics/flags.py, Thresholds)
 // until a session brings the ones in force (kept for offline use); the flags come from the server.
@@ -128,12 +128,12 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
       h("span", {}, "of rated output, ", band)),
     loadBar({ load: result.load_pct, low: result.load_low_pct, high: result.load_high_pct, serviceFactor, label }),
     h("dl", { class: "facts" },
-      fact("Torque", `${fmt(result.torque_pct, 0)} %`, "of rated"),
-      fact("Output", `${fmt(result.output_kw, 1)} kW`),
-      fact("Slip", `${fmt(result.slip_pct, 2)} %`, `${fmt(result.slip_rpm, 0)} rpm`),
-      fact("Breakdown margin", result.breakdown_margin == null ? "–" : `× ${fmt(result.breakdown_margin, 2)}`,
-        result.breakdown_margin_low != null ? `at least × ${fmt(result.breakdown_margin_low, 2)}; breakdown ÷ present torque` : "breakdown ÷ present torque"),
-      fact("Efficiency", `${fmt(result.efficiency_pct, 1)} %`, result.efficiency_low_pct != null ? `${fmt(result.efficiency_low_pct, 1)}–${fmt(result.efficiency_high_pct, 1)} %` : ""),
+      fact("Torque", qty(result.torque_pct, 0, "%"), "of rated"),
+      fact("Output", qty(result.output_kw, 1, "kW")),
+      fact("Slip", qty(result.slip_pct, 2, "%"), qty(result.slip_rpm, 0, "rpm")),
+      fact("Breakdown margin", times(result.breakdown_margin),
+        result.breakdown_margin_low != null ? `at least ${times(result.breakdown_margin_low)}; breakdown ÷ present torque` : "breakdown ÷ present torque"),
+      fact("Efficiency", qty(result.efficiency_pct, 1, "%"), result.efficiency_low_pct != null ? `${fmt(result.efficiency_low_pct, 1)}–${fmt(result.efficiency_high_pct, 1)} %` : ""),
       fact("Efficiency class", result.efficiency_class || "–", result.efficiency_class ? "at the rated efficiency" : "no rated efficiency given"))));
   if (flags.has("readings_inconsistent")) {
     const f = (result.findings || []).find((x) => x.flag === "readings_inconsistent");
@@ -147,21 +147,22 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
   out.push(h("section", { class: "panel", "aria-labelledby": "supply-h" },
     h("h2", { id: "supply-h" }, "Supply quality"),
     h("dl", { class: "facts" },
-      fact("Voltage unbalance", `${fmt(result.voltage_unbalance_pct, 2)} %`, "NEMA max. deviation"),
-      fact("Voltage unbalance factor", `${fmt(result.voltage_unbalance_factor_pct, 2)} %`, "IEC negative sequence"),
-      fact("Current unbalance", `${fmt(result.current_unbalance_pct, 1)} %`, "NEMA max. deviation"),
+      fact("Voltage unbalance", qty(result.voltage_unbalance_pct, 2, "%"), "NEMA max. deviation"),
+      fact("Voltage unbalance factor", qty(result.voltage_unbalance_factor_pct, 2, "%"), "IEC negative sequence"),
+      fact("Current unbalance", qty(result.current_unbalance_pct, 1, "%"), "NEMA max. deviation"),
       fact("Derating factor", fmt(result.derating_factor, 2), "NEMA MG 1"),
-      fact("Voltage deviation", `${fmt(result.voltage_deviation_pct, 1)} %`),
-      fact("Frequency deviation", `${fmt(result.frequency_deviation_pct, 1)} %`),
+      fact("Voltage deviation", qty(result.voltage_deviation_pct, 1, "%")),
+      fact("Frequency deviation", qty(result.frequency_deviation_pct, 1, "%")),
       fact("Supply zone", result.supply_zone || "–", "IEC 60034-1"))));
   out.push(h("section", { class: "panel", "aria-labelledby": "methods-h" },
     h("h2", { id: "methods-h" }, "Load by method"),
     h("dl", { class: "facts" },
-      fact("Slip method", `${fmt(result.load_slip_pct, 0)} %`),
-      fact("Current method", `${fmt(result.load_current_pct, 0)} %`),
-      fact("Input-power method", `${fmt(result.load_power_pct, 0)} %`),
-      fact("Synchronous speed", `${fmt(result.sync_speed_rpm, 0)} rpm`, `${result.poles ?? "–"} poles`),
-      fact("Starting margin", result.starting_margin == null ? "–" : `× ${fmt(result.starting_margin, 2)}`),
+      fact("Slip method", qty(result.load_slip_pct, 0, "%")),
+      fact("Current method", qty(result.load_current_pct, 0, "%")),
+      fact("Input-power method", qty(result.load_power_pct, 0, "%")),
+      fact("Synchronous speed", qty(result.sync_speed_rpm, 0, "rpm"), `${result.poles ?? "–"} poles`),
+      // a driven machine that needs no breakaway torque (a centrifugal pump or fan) is not judged on it: not shown
+      result.starting_state ? fact("Starting margin", times(result.starting_margin), "locked-rotor ÷ breakaway torque") : null,
       fact("Operating side", result.operating_side || "–"))));
   return out;
 }

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import time
 
 import pytest
@@ -231,3 +232,30 @@ def test_blank_form_is_not_red_until_touched_or_sent(new_context, service):
     assert page.get_attribute("#rd-frequency_hz", "aria-invalid") == "true"
     assert page.evaluate("document.activeElement.id") == "rd-frequency_hz"
     assert service.readings_of(motor["id"]) == []
+
+
+def test_result_reads_number_first_and_skips_a_margin_the_machine_does_not_need(new_context, service):
+    """Margins read "2.91×" (the number first); a missing value is a bare dash, never "– %"; a centrifugal
+    pump needs no breakaway torque, so no starting margin is shown for it (its starting state is not judged)."""
+    conveyor = service.motor("CV-120 margin conveyor", driven_load="constant_torque")
+    pump = service.motor("P-121 margin pump", driven_load="variable_torque")
+    ctx = new_context(TABLET)
+    page = ctx.new_page()
+    sign_in(page, "tess")
+    shown = {}
+    for motor in (conveyor, pump):
+        page.goto(f"/#/motor/{motor['id']}")
+        page.wait_for_selector("#reading-form")
+        fill_reading(page, {k: v for k, v in GOOD.items() if k != "current_l2_a"})
+        page.click("#submit-reading")
+        page.wait_for_selector("#load-value")
+        stored = service.readings_of(motor["id"])[0]["result"]
+        text = page.text_content("main")
+        assert "– %" not in text
+        assert not re.search(r"×\s*\d", text), "a margin reads sign first"
+        shown[motor["tag"]] = (stored, text)
+    stored, text = shown["CV-120 margin conveyor"]
+    assert f"{stored['breakdown_margin']:.2f}×" in text
+    assert stored["starting_state"] and "Starting margin" in text
+    stored, text = shown["P-121 margin pump"]
+    assert stored["starting_state"] in ("", None) and "Starting margin" not in text
