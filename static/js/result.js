@@ -102,11 +102,17 @@ function fact(term, value, extra, key) {
 
 export function findingsList(findings) {
   if (!findings || !findings.length) return h("p", {}, "No findings: nothing outside the limits.");
-  return h("ul", { class: "findings" }, findings.map((f) =>
-    h("li", { class: ["finding", f.state !== "at_limit" && SEVERE.has(f.flag) && "severe"], dataset: { flag: f.flag } },
+  // a caution shared by several findings is printed once, under the first that carries it: repeated under
+  // every finding it buried the findings themselves
+  const said = new Set();
+  return h("ul", { class: "findings" }, findings.map((f) => {
+    const caution = f.caution && !said.has(f.caution) ? f.caution : null;
+    if (caution) said.add(caution);
+    return h("li", { class: ["finding", f.state !== "at_limit" && SEVERE.has(f.flag) && "severe"], dataset: { flag: f.flag } },
       h("h3", {}, (f.state === "at_limit" ? "At the limit: " : "") + (FLAG_WORDS[f.flag] || f.flag)),
       h("p", {}, f.text),
-      f.caution ? h("p", { class: "caution" }, f.caution) : null)));
+      caution ? h("p", { class: "caution" }, caution) : null);
+  }));
 }
 
 /** The server's interpretation of a stored reading. */

@@ -15,9 +15,9 @@ export async function refreshCount() {
   const c = await outbox.counts();
   const el = $("#outbox-count");
   const parts = [`${c.waiting} unsent`];
-  if (c.rejected) parts.push(`${c.rejected} rejected`);
+  if (c.rejected) parts.push(`${c.rejected} refused`);
   el.textContent = parts.join(" · ");
-  el.setAttribute("aria-label", `Outbox: ${c.waiting} unsent readings, ${c.rejected} rejected`);
+  el.setAttribute("aria-label", `Outbox: ${c.waiting} unsent readings, ${c.rejected} refused by the server`);
   el.classList.toggle("has-waiting", c.waiting > 0);
   el.classList.toggle("has-rejected", c.rejected > 0);
   el.dataset.waiting = String(c.waiting);
@@ -39,7 +39,7 @@ export async function sync(reason) {
   if (summary.stopped === "login") showBanner("Sign in again to send the readings waiting in the outbox.", "#/login");
   const bits = [];
   if (summary.sent) bits.push(`${summary.sent} sent`);
-  if (summary.rejected) bits.push(`${summary.rejected} rejected by the server (see Outbox)`);
+  if (summary.rejected) bits.push(`${summary.rejected} refused by the server (see Outbox)`);
   if (bits.length) toast(`Outbox (${reason}): ${bits.join(", ")}.`);
   await refreshCount();
   return summary;

@@ -329,7 +329,7 @@ export async function renderPending(el, clientId, seq) {
     }
   }
   if (entry.state === "rejected") {
-    clear(status, h("span", { class: "state rejected" }, "rejected"), " The server refused this reading: ",
+    clear(status, h("span", { class: "state rejected" }, "refused by the server"), " ", "It was not stored: ",
       h("strong", { id: "reject-message" }, entry.error.message), " ",
       h("a", { class: "btn", href: `#/outbox/${entry.client_id}/fix` }, "Correct it"));
     status.classList.add("retake");
@@ -371,7 +371,7 @@ export async function renderOutbox(el) {
           h("p", {}, [["speed_rpm", "rpm"], ["frequency_hz", "Hz"], ["current_l1_a", "A"], ["voltage_l12_v", "V"], ["power_kw", "kW"]]
             .filter(([k]) => e.body[k] != null).map(([k, u]) => `${e.body[k]} ${u}`).join(" · ")),
           e.state === "rejected"
-            ? h("p", {}, h("span", { class: "state rejected" }, "rejected"), " ", h("span", { class: "reject-message" }, e.error.message))
+            ? h("p", {}, h("span", { class: "state rejected" }, "refused by the server"), " ", h("span", { class: "reject-message" }, e.error.message))
             : h("p", {}, h("span", { class: "state waiting" }, "waiting"), e.attempts ? ` · ${e.attempts} attempt(s)` : "",
               e.username && e.username !== ctx.user.username ? ` · entered by ${e.username}, sent when they sign in` : "")),
         h("a", { class: "btn", href: `#/pending/${e.client_id}` }, "Provisional result"),

@@ -259,3 +259,20 @@ def test_result_reads_number_first_and_skips_a_margin_the_machine_does_not_need(
     assert stored["starting_state"] and "Starting margin" in text
     stored, text = shown["P-121 margin pump"]
     assert stored["starting_state"] in ("", None) and "Starting margin" not in text
+
+
+def test_a_shared_caution_is_printed_once(new_context, service):
+    """Three findings with the same caution print it once (under the first); a different caution still shows."""
+    page = new_context(TABLET).new_page()
+    sign_in(page, "tess")
+    counts = page.evaluate("""async () => {
+      const { findingsList } = await import('/js/result.js');
+      const same = 'Isolate before you touch the terminals.';
+      const ul = findingsList([
+        { flag: 'overloaded', text: 'a', caution: same, state: 'beyond' },
+        { flag: 'over_service_factor', text: 'b', caution: same, state: 'beyond' },
+        { flag: 'near_breakdown', text: 'c', caution: same, state: 'beyond' },
+        { flag: 'underloaded', text: 'd', caution: 'Another caution.', state: 'beyond' }]);
+      return [...ul.querySelectorAll('li')].map((li) => li.querySelectorAll('.caution').length);
+    }""")
+    assert counts == [1, 0, 0, 1]
