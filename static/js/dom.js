@@ -82,6 +82,13 @@ export function uuid() {
 }
 
 /** "2024-05-17T09:30:00+02:00" -> "2024-05-17 09:30" (the technician's own clock, as written). */
+/** The site's wall-clock time as the technician's device gave it, with its zone: "2026-12-03 10:40 UTC+01:00".
+ *  One format for every time on the page. */
 export function showTime(iso) {
-  return iso ? String(iso).replace("T", " ").slice(0, 16) : "–";
+  if (!iso) return "–";
+  const text = String(iso);
+  const wall = text.replace("T", " ").slice(0, 16);
+  const zone = /(Z|[+-]\d{2}:?\d{2})$/.exec(text);
+  if (!zone) return wall;
+  return `${wall} UTC${zone[1] === "Z" ? "" : zone[1].length === 5 ? `${zone[1].slice(0, 3)}:${zone[1].slice(3)}` : zone[1]}`;
 }

@@ -276,3 +276,15 @@ def test_a_shared_caution_is_printed_once(new_context, service):
       return [...ul.querySelectorAll('li')].map((li) => li.querySelectorAll('.caution').length);
     }""")
     assert counts == [1, 0, 0, 1]
+
+
+def test_times_carry_their_zone(new_context, service):
+    """A site's wall-clock time is shown with its UTC offset, in one format (ISO 8601 offsets)."""
+    page = new_context(TABLET).new_page()
+    sign_in(page, "tess")
+    shown = page.evaluate("""async () => {
+      const { showTime } = await import('/js/dom.js');
+      return ['2026-12-03T10:40:00-06:00', '2026-12-03T10:40:00+0100', '2026-12-03T16:40:00Z', '2026-12-03T10:40', null]
+        .map(showTime);
+    }""")
+    assert shown == ["2026-12-03 10:40 UTC-06:00", "2026-12-03 10:40 UTC+01:00", "2026-12-03 16:40 UTC", "2026-12-03 10:40", "–"]
