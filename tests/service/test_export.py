@@ -93,3 +93,34 @@ def _is_number(text: str) -> bool:
     ("plain", "plain"), ("", ""), (-1.5, -1.5), (None, None), (3, 3)])
 def test_neutralise(value, expected):
     assert neutralise(value) == expected
+
+
+def test_record_keeps_every_review_and_follows_the_day_log_filters(app, tech, tech2, sup, motor):
+    """A reject and its comment stay in the record after a later accept; the reviewer by full name; the
+    export takes the day log's technician and finding filters and a date range (issue 12, item 5)."""
+    body = reading_body(motor["id"], taken_at="2025-04-01T09:00:00+02:00")
+    first = tech.post("/api/v1/readings", json=body).get_json()
+    odd = tech2.post("/api/v1/readings", json=reading_body(
+        motor["id"], speed_rpm=1468, current_l1_a=17.5, current_l2_a=21.5, current_l3_a=21.0,
+        taken_at="2025-04-02T14:10:00+01:00")).get_json()
+    tech.post("/api/v1/readings", json=reading_body(motor["id"], taken_at="2025-04-05T08:00:00")).get_json()
+    assert sup.post(f"/api/v1/readings/{first['id']}/review",
+                    json={"decision": "rejected", "comment": "clamp on the wrong phase"}).status_code == 201
+    assert sup.post(f"/api/v1/readings/{first['id']}/review", json={"decision": "accepted"}).status_code == 201
+    frame = _frame(sup.get("/api/v1/export.csv?date_from=2025-04-01&date_to=2025-04-02"))
+    assert tuple(frame.columns) == EXPORT_COLUMNS and EXPORT_COLUMNS[-2:] == ("reviewer_name", "review_history")
+    assert list(frame["reading_id"]) == [first["id"], odd["id"]]
+    row = frame.iloc[0]
+    assert row["review_decision"] == "accepted" and row["reviewer"] == "sue"
+    history = row["review_history"].split(" | ")
+    assert len(history) == 2
+    assert " rejected by " in history[0] and history[0].endswith(": clamp on the wrong phase")
+    assert " accepted by " in history[1]
+    name = row["reviewer_name"]
+    assert isinstance(name, str) and name and f"by {name} (sue)" in history[0]
+    assert pd.isna(frame.iloc[1]["review_history"])
+    assert list(_frame(sup.get("/api/v1/export.csv?technician=" + odd["technician"]))["reading_id"]) == [odd["id"]]
+    flagged = _frame(sup.get("/api/v1/export.csv?flag=current_unbalance&date_from=2025-04-01"))
+    assert list(flagged["reading_id"]) == [odd["id"]]
+    assert len(_frame(sup.get("/api/v1/export.csv?date_from=2025-04-03&date_to=2025-04-02"))) == 0
+    assert sup.get("/api/v1/export.csv?date_to=2.4.2025").get_json()["error"]["field"] == "date_to"

@@ -8,6 +8,8 @@ with other content it is a ConflictError.
 
 from __future__ import annotations
 
+import itertools
+
 import json
 from dataclasses import dataclass
 from datetime import datetime
@@ -71,6 +73,25 @@ def export_rows(db: Database, **filters) -> Iterator[RowMapping]:
     """Rows for the CSV record (date, site filters), streamed inside one read transaction."""
     with db.read() as conn:
         yield from store.iter_export_rows(conn, **filters)
+
+
+def export_records(db: Database, *, batch: int = 1000, **filters) -> Iterator[tuple[RowMapping, list[RowMapping]]]:
+    """(row, every review of it oldest first) for the CSV record, streamed inside one read transaction.
+
+    Filters: date, date_from, date_to, site, technician, flag. The reviews are read a batch of rows at a
+    time, so the record keeps a reject and its comment even after a later accept.
+    """
+    with db.read() as conn:
+        rows = store.iter_export_rows(conn, **filters)
+        while True:
+            chunk = list(itertools.islice(rows, batch))
+            if not chunk:
+                return
+            history: dict[int, list[RowMapping]] = {}
+            for rv in store.review_history_rows(conn, [r["id"] for r in chunk]):
+                history.setdefault(rv["reading_id"], []).append(rv)
+            for r in chunk:
+                yield r, history.get(r["id"], [])
 
 
 def picture_record(db: Database, reading_id: int) -> tuple[dict, dict]:

@@ -49,7 +49,8 @@ def _reading_select(with_nameplate: bool = False, reading_id=None):
             _tech.c.username.label("technician"), _tech.c.full_name.label("technician_name"),
             readings.c.taken_at, readings.c.received_at, readings.c.engine_version, readings.c.supersedes_id,
             _superseding.c.id.label("superseded_by"), _review.c.decision, _review.c.comment,
-            _review.c.reviewed_at, _reviewer.c.username.label("reviewer"), readings.c.inputs, readings.c.result]
+            _review.c.reviewed_at, _reviewer.c.username.label("reviewer"),
+            _reviewer.c.full_name.label("reviewer_name"), readings.c.inputs, readings.c.result]
     if with_nameplate:
         cols += [motor_revisions.c[f] for f in REVISION_FIELDS]
     q = (select(*cols).select_from(readings)
@@ -64,9 +65,13 @@ def _reading_select(with_nameplate: bool = False, reading_id=None):
     return q.where(readings.c.id == reading_id) if reading_id is not None else q
 
 
-def _filtered(q, *, date=None, site=None, technician=None, flag=None, motor_id=None):
+def _filtered(q, *, date=None, site=None, technician=None, flag=None, motor_id=None, date_from=None, date_to=None):
     if date:
         q = q.where(readings.c.taken_date == date)
+    if date_from:  # ISO dates compare as text
+        q = q.where(readings.c.taken_date >= date_from)
+    if date_to:
+        q = q.where(readings.c.taken_date <= date_to)
     if site:
         q = q.where(sites.c.name == site)
     if technician:
@@ -95,6 +100,18 @@ def review_rows(conn: Connection, reading_id: int) -> list[RowMapping]:
         select(reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at, users.c.username.label("reviewer"))
         .join(users, users.c.id == reviews.c.reviewer_id)
         .where(reviews.c.reading_id == reading_id).order_by(reviews.c.id)).mappings().all()
+
+
+def review_history_rows(conn: Connection, reading_ids: Iterable[int]) -> list[RowMapping]:
+    """Every review of the given readings, by reading then oldest first, with the reviewer's full name."""
+    ids = list(reading_ids)
+    if not ids:
+        return []
+    return conn.execute(
+        select(reviews.c.reading_id, reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at,
+               users.c.username.label("reviewer"), users.c.full_name.label("reviewer_name"))
+        .join(users, users.c.id == reviews.c.reviewer_id)
+        .where(reviews.c.reading_id.in_(ids)).order_by(reviews.c.reading_id, reviews.c.id)).mappings().all()
 
 
 def reading_rows(conn: Connection, *, limit: int = 100_000, **filters) -> list[RowMapping]:

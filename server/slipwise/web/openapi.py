@@ -112,6 +112,9 @@ READINGS_Q = [DATE_Q, SITE_Q, _q("flag", "only readings with this flag", {"type"
               _q("technician", "username", {"type": "string", "maxLength": 64, "pattern": NO_CONTROLS}),
               _q("motor_id", "one motor", {"type": "integer", "minimum": 1, "maximum": MAX_ID}),
               _q("limit", "at most this many", {"type": "integer", "minimum": 1, "maximum": 100000})]
+EXPORT_Q = [DATE_Q, _q("date_from", "first calendar date of taken_at, YYYY-MM-DD (inclusive)", {"type": "string", "format": "date"}),
+            _q("date_to", "last calendar date of taken_at, YYYY-MM-DD (inclusive)", {"type": "string", "format": "date"}),
+            SITE_Q, READINGS_Q[2], READINGS_Q[3]]
 AUDIT_Q = [DATE_Q, _q("limit", "at most this many", {"type": "integer", "minimum": 1, "maximum": 10000})]
 EXPORT_TEXT = (" Columns, in this order: " + ", ".join(EXPORT_COLUMNS) + ". Text cells starting with =, +, -, @, "
                "tab or CR get a leading apostrophe.")
@@ -146,7 +149,7 @@ ROUTES: list[tuple] = [
      {"200": SVG, "304": {"description": "not modified (ETag)"}}, "400 401 404"),
     ("/readings/{reading_id}/review", "post", SUP, "review a reading: accepted, retake or rejected",
      [ID["reading_id"], CSRF], "ReviewInput", {"201": ("the review", "ReviewCreated")}, "400 401 403 404 413 415"),
-    ("/export.csv", "get", SUP, "the commissioning record as CSV, one row per reading", [DATE_Q, SITE_Q], None,
+    ("/export.csv", "get", SUP, "the commissioning record as CSV, one row per reading", EXPORT_Q, None,
      {"200": CSV}, "400 401 403"),
     ("/interpret", "post", TECH, "interpret a nameplate and reading without storing anything", [CSRF],
      "InterpretInput", {"200": ("the result", "Result")}, "400 401 403 404 413 415"),
