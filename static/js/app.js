@@ -35,6 +35,7 @@ setRoutes([
   [/^#\/outbox$/, tech.renderOutbox],
   [/^#\/mine$/, tech.renderMine],
   [/^#\/reading\/(\d+)$/, tech.renderReadingView],
+  [/^#\/retake\/(\d+)$/, tech.renderRetake],
   [/^#\/log$/, sup.renderLog],
 ]);
 

@@ -248,7 +248,12 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
     opts.serverError ? h("div", { class: "panel retake", role: "alert", id: "server-message" },
       h("h2", {}, "The server refused this reading"), h("p", {}, opts.serverError.message),
       h("p", { class: "muted" }, "Correct the field and send it again; the reading stays in the outbox until then.")) : null,
-    opts.supersedes ? h("p", { class: "panel" }, `This reading replaces reading ${opts.supersedes} (take again).`) : null,
+    opts.supersedes ? h("div", { class: "panel retake", id: "retake-note" },
+      h("p", {}, `This reading replaces reading ${opts.supersedes}.`),
+      opts.asked ? h("p", {}, `${opts.asked.reviewer_name || opts.asked.reviewer} asked for it to be taken again: `,
+        h("strong", {}, opts.asked.comment || "no comment given")) : null,
+      h("p", {}, "The fields hold the old reading's values so you can see what was entered: measure again and ",
+        "overwrite each one before you send.")) : null,
     group("Speed and frequency", ["frequency_hz", "speed_rpm"]),
     group("Line currents", ["current_l1_a", "current_l2_a", "current_l3_a"], h("p", { class: "hint" }, "Clamp around one phase conductor at a time. At least one current.")),
     group("Line voltages", ["voltage_l12_v", "voltage_l23_v", "voltage_l31_v"], h("p", { class: "hint" }, "Line to line at the motor terminals or its isolator. Needed on mains; optional on a drive.")),
@@ -401,9 +406,27 @@ export async function renderMine(el, _arg, seq) {
     readings = (await outbox.cacheGet("mine")) || [];
     note = " (saved copy: offline)";
   }
+  // retakes asked of me on any day, until a new reading answers them (cached for the basement)
+  let retakes = [];
+  try {
+    retakes = (await api("GET", "/retakes")).data.readings;
+    await outbox.cachePut("retakes", retakes);
+  } catch (e) {
+    if (!(e instanceof NetworkError)) throw e;
+    retakes = (await outbox.cacheGet("retakes")) || [];
+  }
   if (!routeIsCurrent(seq)) return;
   const waiting = await outbox.all();
-  clear(el, h("h1", { tabindex: "-1" }, "My readings"),
+  const answered = new Set(waiting.map((e) => e.body.supersedes).filter(Boolean));
+  const open = retakes.filter((r) => !answered.has(r.id));
+  const retakeList = open.length ? h("section", { class: "panel retake", "aria-labelledby": "retakes-h", id: "retakes" },
+    h("h2", { id: "retakes-h" }, `Asked to take again (${open.length})`),
+    h("ul", { class: "entries" }, open.map((r) => h("li", { class: "entry", dataset: { id: r.id } },
+      h("div", { class: "grow" }, h("p", { class: "tag" }, r.tag),
+        h("p", { class: "muted" }, `${r.site} · reading ${r.id} · ${showTime(r.taken_at)}`),
+        h("p", {}, `${r.review.reviewer_name || r.review.reviewer}: ${r.review.comment || "take it again"}`)),
+      h("a", { class: "btn btn-main", href: `#/retake/${r.id}` }, "Take again"))))) : null;
+  clear(el, h("h1", { tabindex: "-1" }, "My readings"), retakeList,
     h("p", { class: "muted" }, `${date}: ${readings.length} stored reading(s)${note}, ${waiting.length} in the outbox.`),
     readings.length ? h("ul", { class: "entries", id: "mine-list" }, readings.slice().reverse().map((r) => {
       const dec = r.review ? r.review.decision : "none";
@@ -415,6 +438,25 @@ export async function renderMine(el, _arg, seq) {
           r.review && r.review.comment ? h("span", {}, " ", r.review.comment) : null),
         h("a", { class: "btn", href: `#/reading/${r.id}` }, "Open"));
     })) : h("p", { class: "panel" }, "No stored readings today yet."));
+}
+
+// --- A retake asked by the supervisor, opened from My readings -----------------------------------------------
+export async function renderRetake(el, idText, seq) {
+  const id = Number(idText);
+  let reading = null;
+  try {
+    reading = (await api("GET", `/readings/${id}`)).data;
+  } catch (e) {
+    if (!(e instanceof NetworkError)) throw e;
+    reading = ((await outbox.cacheGet("retakes")) || []).find((r) => r.id === id) || null;
+  }
+  if (!routeIsCurrent(seq)) return;
+  if (!reading) {
+    clear(el, h("h1", { tabindex: "-1" }, `Reading ${id}`), h("p", {}, "This retake is not in the saved copy; open it when the network returns."));
+    return;
+  }
+  const { taken_at, ...values } = reading.inputs;
+  return renderReadingForm(el, String(reading.motor_id), seq, { values, supersedes: reading.id, asked: reading.review });
 }
 
 // --- One stored reading (technician and supervisor) ------------------------------------------------------------
@@ -442,15 +484,18 @@ export async function renderReadingView(el, idText, seq) {
   const sf = (motor && motor.service_factor) || 1;
   const retake = () => {
     const { taken_at, ...values } = reading.inputs;
-    renderReadingForm(el, String(reading.motor_id), seq, { values, supersedes: reading.id });
+    renderReadingForm(el, String(reading.motor_id), seq, { values, supersedes: reading.id, asked: reading.review });
   };
   const rev = reading.review;
+  const retakeAsked = rev && rev.decision === "retake" && !reading.superseded_by && ctx.user && ctx.user.role !== "supervisor";
   const head = [
     h("h1", { tabindex: "-1" }, reading.tag),
     h("p", { class: "muted" }, `${reading.site} · reading ${reading.id} · taken ${showTime(reading.taken_at)} by ${reading.technician_name || reading.technician}`),
     h("p", { id: "review-state" }, rev
-      ? [h("span", { class: ["state", rev.decision] }, reviewWord(rev.decision)), ` by ${rev.reviewer}`, rev.comment ? `: ${rev.comment}` : ""]
+      ? [h("span", { class: ["state", rev.decision] }, reviewWord(rev.decision)), ` by ${rev.reviewer_name || rev.reviewer}`, rev.comment ? `: ${rev.comment}` : ""]
       : h("span", { class: "state none" }, "not reviewed yet")),
+    retakeAsked ? h("p", {}, h("button", { class: "btn btn-main", type: "button", id: "take-again-asked", onclick: retake },
+      "Take the reading again")) : null,
   ];
   if (ctx.pendingStart) {
     ctx.resultShownMs = performance.now() - ctx.pendingStart;

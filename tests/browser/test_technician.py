@@ -288,3 +288,56 @@ def test_times_carry_their_zone(new_context, service):
         .map(showTime);
     }""")
     assert shown == ["2026-12-03 10:40 UTC-06:00", "2026-12-03 10:40 UTC+01:00", "2026-12-03 16:40 UTC", "2026-12-03 10:40", "–"]
+
+
+def test_retake_asked_on_an_earlier_day_reaches_the_technician_and_closes(new_context, service):
+    """Issue 12, item 2: the supervisor's retake request from an earlier day is on the technician's list with
+    a way to take the reading again; the form says its values are the old ones; answering closes it."""
+    import uuid
+
+    motor = service.motor("P-130 retake pump")
+    status, old = service.call("POST", "/api/v1/readings", {
+        "client_id": str(uuid.uuid4()), "motor_id": motor["id"], "taken_at": "2025-01-20T09:15:00+01:00",
+        **{k: float(v) for k, v in GOOD.items()}}, token=service.tech_token)
+    assert status == 201, old
+    status, _ = service.call("POST", f"/api/v1/readings/{old['id']}/review",
+                             {"decision": "retake", "comment": "tachometer tape missing, speed doubtful"})
+    assert status == 201
+    page = new_context(TABLET).new_page()
+    sign_in(page, "tess")
+    page.goto("/#/mine")
+    page.wait_for_selector(f"#retakes li[data-id='{old['id']}']")
+    assert "tachometer tape missing" in page.text_content("#retakes")
+    shot(page, "retake-01-my-readings")
+    page.click(f"#retakes li[data-id='{old['id']}'] a.btn")
+    page.wait_for_selector("#retake-note")
+    note = page.text_content("#retake-note")
+    assert f"replaces reading {old['id']}" in note and "tachometer tape missing" in note and "overwrite" in note
+    assert page.input_value("#rd-speed_rpm") == "1480"  # the old value, said so above
+    page.fill("#rd-speed_rpm", "1478")
+    page.click("#submit-reading")
+    page.wait_for_selector("#load-value")
+    stored = service.readings_of(motor["id"])
+    assert [r["supersedes"] for r in stored] == [None, old["id"]] and stored[1]["inputs"]["speed_rpm"] == 1478
+    page.goto("/#/mine")
+    page.wait_for_selector("#mine-list, p.panel")
+    assert page.locator("#retakes").count() == 0  # answered: off the list
+
+
+def test_retake_button_on_the_reading_itself(new_context, service):
+    import uuid
+
+    motor = service.motor("P-131 retake pump")
+    status, old = service.call("POST", "/api/v1/readings", {
+        "client_id": str(uuid.uuid4()), "motor_id": motor["id"], **{k: float(v) for k, v in GOOD.items()}},
+        token=service.tech_token)
+    assert status == 201, old
+    assert service.call("POST", f"/api/v1/readings/{old['id']}/review",
+                        {"decision": "retake", "comment": "phase 2 clamp reading"})[0] == 201
+    page = new_context(TABLET).new_page()
+    sign_in(page, "tess")
+    page.goto(f"/#/reading/{old['id']}")
+    page.wait_for_selector("#take-again-asked")
+    page.click("#take-again-asked")
+    page.wait_for_selector("#retake-note")
+    assert "phase 2 clamp reading" in page.text_content("#retake-note")

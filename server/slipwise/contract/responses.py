@@ -76,6 +76,7 @@ class Review(_Response):
     decision: Literal[REVIEW_DECISIONS]  # type: ignore[valid-type]
     comment: str
     reviewer: str
+    reviewer_name: Optional[str] = Field(None, description="the reviewer's full name")
     reviewed_at: datetime
 
 

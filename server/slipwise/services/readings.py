@@ -69,6 +69,12 @@ def day_log(db: Database, *, limit: int = 100_000, **filters) -> list[RowMapping
         return store.reading_rows(conn, limit=limit, **filters)
 
 
+def open_retakes(db: Database, user: Mapping[str, Any]) -> list[RowMapping]:
+    """The retakes still asked for, across days: a technician sees the ones asked of them, a supervisor all."""
+    with db.read() as conn:
+        return store.open_retake_rows(conn, technician=None if user["role"] == "supervisor" else user["username"])
+
+
 def export_rows(db: Database, **filters) -> Iterator[RowMapping]:
     """Rows for the CSV record (date, site filters), streamed inside one read transaction."""
     with db.read() as conn:

@@ -97,9 +97,19 @@ def reading_row(conn: Connection, reading_id: int) -> RowMapping | None:
 def review_rows(conn: Connection, reading_id: int) -> list[RowMapping]:
     """Every review of a reading, oldest first: decision, comment, reviewed_at, reviewer."""
     return conn.execute(
-        select(reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at, users.c.username.label("reviewer"))
+        select(reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at, users.c.username.label("reviewer"),
+               users.c.full_name.label("reviewer_name"))
         .join(users, users.c.id == reviews.c.reviewer_id)
         .where(reviews.c.reading_id == reading_id).order_by(reviews.c.id)).mappings().all()
+
+
+def open_retake_rows(conn: Connection, *, technician: str | None = None, limit: int = 10_000) -> list[RowMapping]:
+    """Readings whose latest review asks for a retake and that no later reading supersedes yet, any day,
+    oldest first; ``technician`` (a user name) keeps that technician's own."""
+    q = _reading_select().where(_review.c.decision == "retake").where(_superseding.c.id.is_(None))
+    if technician:
+        q = q.where(_tech.c.username == technician)
+    return conn.execute(q.order_by(readings.c.taken_at_utc, readings.c.id).limit(limit)).mappings().all()
 
 
 def review_history_rows(conn: Connection, reading_ids: Iterable[int]) -> list[RowMapping]:

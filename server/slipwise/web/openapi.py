@@ -142,6 +142,9 @@ ROUTES: list[tuple] = [
      "400 401 403 404 409 413 415"),
     ("/readings", "get", TECH, "the day's log, ordered by taken_at", READINGS_Q, None,
      {"200": ("readings", "ReadingList")}, "400 401"),
+    ("/retakes", "get", TECH, "retakes still asked for, any day, oldest first: a technician's own, or all for a "
+     "supervisor; a retake is answered by a reading that supersedes it", [], None,
+     {"200": ("readings", "ReadingList")}, "400 401"),
     ("/readings/{reading_id}", "get", TECH, "one reading with its interpretation and review", [ID["reading_id"]],
      None, {"200": ("the reading", "Reading")}, "400 401 404"),
     ("/readings/{reading_id}/torque-speed.svg", "get", TECH, "torque-speed picture: motor at rated and measured "

@@ -58,6 +58,14 @@ def day_log():
     return _json(day_log_json(services.day_log(state().db, limit=limit, **filters)))
 
 
+@bp.get("/retakes")
+@requires("technician")
+def retakes():
+    """The readings a supervisor asked to take again that no new reading has answered yet, any day."""
+    query(())
+    return _json(day_log_json(services.open_retakes(state().db, g.user)))
+
+
 @bp.get("/readings/<id:reading_id>")
 @requires("technician")
 def one(reading_id: int):

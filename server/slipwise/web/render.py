@@ -26,7 +26,7 @@ def _review(row: Mapping[str, Any]) -> dict | None:
     if row["decision"] is None:
         return None
     return {"decision": row["decision"], "comment": row["comment"], "reviewer": row["reviewer"],
-            "reviewed_at": row["reviewed_at"].isoformat()}
+            "reviewer_name": row.get("reviewer_name") or None, "reviewed_at": row["reviewed_at"].isoformat()}
 
 
 def reading_json(row: Mapping[str, Any]) -> str:
