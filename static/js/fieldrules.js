@@ -54,7 +54,11 @@ export function parseField(f, raw) {
   }
   const v = Number(text.replace(",", ".")) + 0; // + 0 turns -0 into 0
   if (!Number.isFinite(v) || v < f.low || v > f.high) {
-    return { value: v, error: `${f.label} ${v} ${f.unit} is outside ${fmtRange(f)}.` };
+    // a per-unit field typed as a percentage (power factor 85 for 0.85): say what was probably meant
+    const asFraction = v / 100;
+    const meant = f.high <= 1 && v > 1 && v <= 100 && asFraction >= f.low && asFraction <= f.high
+      ? ` Written as a percentage? ${v} % is ${asFraction}.` : "";
+    return { value: v, error: `${f.label} ${v}${WORD_UNITS.has(f.unit) || !f.unit ? "" : ` ${f.unit}`} is outside ${fmtRange(f)}.${meant}` };
   }
   if (f.integer && !Number.isInteger(v)) {
     return { value: v, error: `${f.label} must be a whole number (${fmtRange(f)}).` };

@@ -131,6 +131,11 @@ export async function renderMotors(el, _arg, seq) {
 }
 
 // --- Register a motor ---------------------------------------------------------------------------
+/** A server message with the contract's field names ("rated_speed_rpm") read as their labels ("Rated speed"). */
+function plainMessage(text) {
+  return String(text).replace(/\b[a-z][a-z0-9]*(?:_[a-z0-9]+)+\b/g, (name) => (FIELD[name] ? FIELD[name].label : name));
+}
+
 export async function renderMotorForm(el) {
   const { motors } = await loadMotors();
   const sites = [...new Set(motors.map((m) => m.site))].sort();
@@ -139,8 +144,12 @@ export async function renderMotorForm(el) {
   const location = textField("location", "Location", "", { max: 200 });
   const description = textField("description", "Description", "", { max: 2000 });
   let unit = "kw";
-  const nums = Object.fromEntries(NAMEPLATE_NUMBERS.map((f) => [f.name, numberField(f, null, "np")]));
+  // rated output is optional in the contract only because it may be given in kW or in hp: one of them is
+  // needed, so the page never labels it "(optional)"
+  const OUTPUT = new Set(["rated_power_kw", "rated_power_hp"]);
+  const nums = Object.fromEntries(NAMEPLATE_NUMBERS.map((f) => [f.name, numberField(OUTPUT.has(f.name) ? { ...f, required: true } : f, null, "np")]));
   const choices = Object.fromEntries(NAMEPLATE_CHOICES.map((c) => [c.name, choiceField(c, null, "np")]));
+  const MAIN_CHOICES = ["driven_load"]; // what the motor drives decides the starting check: asked up front
   nums.rated_power_hp.el.hidden = true;
   const unitRow = h("fieldset", { class: "choice-row" }, h("legend", {}, "Output given in"),
     ["kw", "hp"].map((u) => h("label", {}, h("input", { type: "radio", name: "power-unit", value: u, checked: u === "kw" || null,
@@ -153,10 +162,12 @@ export async function renderMotorForm(el) {
     h("fieldset", { class: "panel" }, h("legend", {}, "Where"), h("div", { class: "grid" }, site.el, tag.el, location.el, description.el),
       h("datalist", { id: "site-names" }, sites.map((x) => h("option", { value: x })))),
     h("fieldset", { class: "panel" }, h("legend", {}, "Nameplate"), unitRow,
-      h("div", { class: "grid" }, nums.rated_power_kw.el, nums.rated_power_hp.el, required.map((k) => nums[k].el))),
-    h("fieldset", { class: "panel" }, h("legend", {}, "Optional: blanks use typical values"),
+      h("div", { class: "grid" }, nums.rated_power_kw.el, nums.rated_power_hp.el, required.map((k) => nums[k].el),
+        MAIN_CHOICES.map((k) => choices[k].el))),
+    h("fieldset", { class: "panel" }, h("legend", {}, "From the nameplate or catalogue, if given (blanks use typical values)"),
       h("p", { class: "hint" }, "Leave a field blank when the nameplate or catalogue does not give it; the hint under each field says what is used instead."),
-      h("div", { class: "grid" }, optional.map((k) => nums[k].el), Object.values(choices).map((c) => c.el))),
+      h("div", { class: "grid" }, optional.map((k) => nums[k].el),
+        Object.entries(choices).filter(([k]) => !MAIN_CHOICES.includes(k)).map(([, c]) => c.el))),
     formError,
     h("div", { class: "actions" }, h("button", { class: "btn btn-main", type: "submit" }, "Save motor"),
       h("a", { class: "btn", href: "#/motors" }, "Cancel")));
@@ -193,11 +204,14 @@ export async function renderMotorForm(el) {
       if (e instanceof NetworkError) formError.textContent = "No connection: a new motor needs the network (readings do not).";
       else if (e instanceof ApiError) {
         const target = nums[e.field] || ({ site, tag, location, description })[e.field];
+        const message = plainMessage(e.message);
         if (target) {
-          target.error.textContent = e.message;
+          target.error.textContent = message;
           (target.input || target.select).focus();
         }
-        formError.textContent = e.message;
+        formError.textContent = message;
+        const same = e.status === 409 && motors.find((m) => m.site === body.site && m.tag.toLowerCase() === body.tag.toLowerCase());
+        if (same) formError.append(" ", h("a", { href: `#/motor/${same.id}`, id: "existing-motor" }, `Open ${same.tag} at ${same.site}`));
       } else throw e;
     }
   });

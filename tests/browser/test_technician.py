@@ -341,3 +341,35 @@ def test_retake_button_on_the_reading_itself(new_context, service):
     page.click("#take-again-asked")
     page.wait_for_selector("#retake-note")
     assert "phase 2 clamp reading" in page.text_content("#retake-note")
+
+
+def test_register_form_wording(new_context, service):
+    """Issue 12, item 9: rated output is not "(optional)"; the driven machine is asked up front; a power factor
+    typed as a percentage gets the fraction suggested; a synchronous speed typed as the rated speed is named as
+    such in plain words (no internal field name); a duplicate tag links to the motor already registered."""
+    existing = service.motor("P-140 wording pump")
+    page = new_context(TABLET).new_page()
+    sign_in(page, "tess")
+    page.goto("/#/motor/new")
+    page.wait_for_selector("#np-rated_voltage_v")
+    assert "optional" not in page.text_content("label[for=np-rated_power_kw]")
+    # the driven machine sits with the required nameplate values, not among the optional ones
+    assert page.locator("fieldset:has(#np-rated_voltage_v) #np-driven_load").count() == 1
+    page.fill("#np-rated_power_factor", "85")
+    assert "0.85" in page.text_content("#np-rated_power_factor-err")  # cos φ 85 → did you mean 0.85
+    page.fill("#np-rated_power_factor", "")
+    page.fill("#t-site", "Harbour pumping station")
+    page.fill("#t-tag", "P-141 wording pump")
+    for name, value in {"rated_power_kw": "15", "rated_voltage_v": "400", "rated_current_a": "28.5",
+                        "rated_frequency_hz": "50", "rated_speed_rpm": "1500"}.items():
+        page.fill(f"#np-{name}", value)
+    page.click("form button[type=submit]")
+    wait_until(page, "document.querySelector('#np-rated_speed_rpm-err').textContent !== ''")
+    said = page.text_content("#np-rated_speed_rpm-err")
+    assert "synchronous speed of a 4-pole motor" in said and "rated_speed_rpm" not in said and "Rated speed" in said
+    shot(page, "register-01-synchronous-speed")
+    page.fill("#np-rated_speed_rpm", "1460")
+    page.fill("#t-tag", existing["tag"])
+    page.click("form button[type=submit]")
+    page.wait_for_selector("#existing-motor")
+    assert page.get_attribute("#existing-motor", "href") == f"#/motor/{existing['id']}"

@@ -132,7 +132,15 @@ def parse_nameplates(cols: Mapping[str, Any], n: int) -> tuple[Parsed, RowErrors
     s_r = speed.slip_pu(n_r, ns_r)
     with np.errstate(invalid="ignore"):
         bad_slip = ~np.isnan(s_r) & ((s_r <= 0.001) | (s_r > 0.20))
-    errors.add(bad_slip, "rated_speed_rpm",
+    # a rated speed typed as the synchronous speed (1500 at 50 Hz): the pole guess then falls one pair short,
+    # so say what the number is instead of blaming a 50 % slip on a 2-pole motor
+    with np.errstate(invalid="ignore", divide="ignore"):
+        sync_typed = np.isnan(p["poles"]) & np.isclose(n_r, speed.synchronous_speed_rpm(f_r, poles + 2.0))
+    errors.add(bad_slip & sync_typed, "rated_speed_rpm",
+               lambda i: f"rated_speed_rpm = {n_r[i]:g} is the synchronous speed of a {poles[i] + 2:g}-pole motor at "
+                         f"{f_r[i]:g} Hz, not its rated speed: the nameplate's rated (full-load) speed is a little "
+                         f"lower, for instance {n_r[i] * 0.97:.0f} rpm; the allowed rated slip is 0.1 to 20 %")
+    errors.add(bad_slip & ~sync_typed, "rated_speed_rpm",
                lambda i: f"rated_speed_rpm = {n_r[i]:g} gives a rated slip of {100 * s_r[i]:.2g} % against "
                          f"{ns_r[i]:g} rpm synchronous ({poles[i]:g} poles at {f_r[i]:g} Hz); "
                          "the allowed rated slip is 0.1 to 20 %")
