@@ -4,13 +4,14 @@
 // deletes the caches of older versions (the outbox lives in IndexedDB and is never touched here).
 // API calls always go to the network; nothing with a status >= 400 is ever cached.
 
-const VERSION = "1.0.12"; // raise with every change to a precached file
+const VERSION = "1.0.13"; // raise with every change to a precached file
 const CACHE = `slipwise-page-${VERSION}`;
 const PRECACHE = [
   "/",
   "/css/slipwise.css",
   "/js/app.js",
   "/js/api.js",
+  "/js/curve.js",
   "/js/dom.js",
   "/js/fields.js",
   "/js/fieldrules.js",

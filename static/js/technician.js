@@ -3,6 +3,7 @@
 // page is reworked for the offline verdict, rather than cutting the shared state in two now.)
 
 import { api, ApiError, NetworkError } from "./api.js";
+import { showCurve } from "./curve.js";
 import { $, clear, fmt, h, localDate, localIso, showTime, uuid } from "./dom.js";
 import { CHOICE_WORDS, crossCheck, FIELD, fmtRange, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, parseField, parseText, READING_NUMBERS, TEXT_FIELDS } from "./fields.js";
 import * as outbox from "./outbox.js";
@@ -481,14 +482,16 @@ export async function renderReadingView(el, idText, seq) {
   if (!reading) {
     try {
       reading = (await api("GET", `/readings/${id}`)).data;
+      await outbox.cachePut(`reading-${id}`, reading); // a reading once opened opens again offline
     } catch (e) {
-      if (e instanceof NetworkError) {
-        clear(el, h("h1", { tabindex: "-1" }, `Reading ${id}`), h("p", {}, "Offline: stored readings open when the network returns."));
+      if (!(e instanceof NetworkError)) throw e;
+      reading = await outbox.cacheGet(`reading-${id}`);
+      if (!reading) {
+        clear(el, h("h1", { tabindex: "-1" }, `Reading ${id}`), h("p", {}, "Offline: this reading is not in the tablet's saved copy; it opens when the network returns."));
         return;
       }
-      throw e;
     }
-  }
+  } else await outbox.cachePut(`reading-${id}`, reading);
   if (!routeIsCurrent(seq)) return;
   let { motor } = await findMotor(reading.motor_id);
   if (ctx.user && ctx.user.role === "supervisor") {
@@ -516,9 +519,10 @@ export async function renderReadingView(el, idText, seq) {
     ctx.pendingStart = null;
     document.documentElement.dataset.resultMs = String(Math.round(ctx.resultShownMs));
   }
+  const pictureBody = h("div", { id: "curve" }, h("p", { class: "muted" }, "Drawing the picture…"));
   const picture = h("section", { class: "panel", "aria-labelledby": "pic-h" }, h("h2", { id: "pic-h" }, "Torque and speed"),
-    h("img", { class: "picture", src: `/api/v1/readings/${reading.id}/torque-speed.svg`, width: 750, height: 460,
-      alt: `Torque–speed picture: the motor's torque at rated and measured voltage, the driven load's torque through the operating point at ${reading.inputs.speed_rpm} rpm, and the breakdown point.` }));
+    pictureBody);
+  showCurve(pictureBody, reading.id); // drawn by the page from the stored result's numbers; cached for offline use
   const extra = [];
   extra.push(historyBlock(reading, motor));
   if (ctx.user && ctx.user.role === "supervisor") extra.push(reviewForm(reading, () => renderReadingView(el, idText, seq)), inputsBlock(reading, motor));

@@ -52,8 +52,10 @@ def test_technician_path_tablet(new_context, service):
     stored = readings[0]
     assert page.text_content("#load-value").strip() == f"{stored['result']['load_pct']:.0f} %"
     assert page.locator("svg.loadbar").count() == 1
-    wait_until(page, "document.querySelector('img.picture').complete")
-    assert page.evaluate("document.querySelector('img.picture').naturalWidth") > 0
+    # the torque-speed picture is drawn by the page (two views, legend below them)
+    page.wait_for_selector("#curve-views svg.curve-view path.c-motor")
+    assert page.locator("#curve-views svg.curve-view").count() == 2
+    assert "rpm" in page.text_content("#curve-caption")
     shot(page, "tech-03-result")
     assert page.locator("#outbox-count").get_attribute("data-waiting") == "0"
 
@@ -373,3 +375,32 @@ def test_register_form_wording(new_context, service):
     page.click("form button[type=submit]")
     page.wait_for_selector("#existing-motor")
     assert page.get_attribute("#existing-motor", "href") == f"#/motor/{existing['id']}"
+
+
+def test_picture_enlarges_and_reopens_offline(new_context, service):
+    """Issue 12, item 7: the page-drawn picture opens large on a tap and is there again offline."""
+    motor = service.motor("P-150 picture pump")
+    ctx = new_context(TABLET)
+    page = ctx.new_page()
+    sign_in(page, "tess")
+    page.goto(f"/#/motor/{motor['id']}")
+    page.wait_for_selector("#reading-form")
+    fill_reading(page, GOOD)
+    page.click("#submit-reading")
+    page.wait_for_selector("#curve-views svg.curve-view")
+    # the legend is a list under the views: no legend element inside a plot area
+    assert page.locator("#curve-views .curve-legend").count() == 0 and page.locator(".curve-legend").count() >= 1
+    page.click("#curve-views")
+    page.wait_for_selector("#curve-dialog[open] svg.curve-view")
+    big = page.evaluate("document.querySelector('#curve-dialog svg.curve-view').getBoundingClientRect().width")
+    small = page.evaluate("document.querySelector('#curve-views svg.curve-view').getBoundingClientRect().width")
+    assert big > small
+    shot(page, "curve-01-enlarged")
+    page.click("#curve-dialog button[type=submit]")
+    reading_id = service.readings_of(motor["id"])[0]["id"]
+    page.goto("/#/motors")
+    page.wait_for_selector("#motor-list")
+    ctx.set_offline(True)
+    page.goto(f"/#/reading/{reading_id}")
+    page.wait_for_selector("#curve-views svg.curve-view path.c-motor")
+    assert "rpm" in page.text_content("#curve-caption")

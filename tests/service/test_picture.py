@@ -97,3 +97,28 @@ def test_with_stored_result_points_and_load_line():
     # the stored result had none: none is drawn, whatever the engine says now
     out = interpretation.with_stored_result(curve, {**stored, "torque_pct": None}, 1475.0)
     assert out["operating_torque_nm"] is None and np.isnan(out["load_torque_nm"]).all()
+
+
+def test_picture_points_are_the_stored_result(app, tech, reading):
+    """GET .../torque-speed.json: the numbers the page draws. Its points are the stored result's (a stored
+    result is evidence), its curves the engine's for the stored nameplate revision."""
+    got = tech.get(f"/api/v1/readings/{reading['id']}/torque-speed.json")
+    assert got.status_code == 200 and got.headers["Content-Type"] == "application/json"
+    c = got.get_json()
+    result = reading["result"]
+    rated = c["rated_torque_nm"]
+    # rated torque T = P / ω = 15 kW / (1460 rpm · 2π/60) = 98.1 N·m (the definition of torque from power)
+    assert abs(rated - 15000 / (1460 * 2 * np.pi / 60)) < 0.01
+    assert abs(100 * c["operating_torque_nm"] / rated - result["torque_pct"]) < 0.01
+    assert c["operating_speed_rpm"] == 1475.0 and c["sync_speed_rpm"] == result["sync_speed_rpm"]
+    assert abs(100 * c["breakdown_torque_nm"] / rated - result["breakdown_torque_now_pct"]) < 0.01
+    speeds = np.array(c["speed_rpm"])
+    assert speeds[0] == 0 and abs(speeds[-1] - c["sync_speed_rpm"]) < 1e-6 and np.all(np.diff(speeds) > 0)
+    motor = np.array(c["torque_measured_v_nm"], dtype=float)
+    # the motor curve peaks at its breakdown speed (within one sample) and is zero at synchronous speed
+    peak = int(np.nanargmax(motor))
+    assert abs(speeds[peak] - c["breakdown_speed_rpm"]) <= max(np.diff(speeds)[max(peak - 1, 0)], 1.0) * 2
+    assert motor[-1] == 0
+    assert c["operating_side"] == (result["operating_side"] or None) and c["measured_speed_rpm"] == 1475.0
+    assert c["flags"] == result["flags"]
+    assert tech.get("/api/v1/readings/98765/torque-speed.json").status_code == 404

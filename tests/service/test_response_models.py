@@ -108,6 +108,9 @@ def test_every_answer_matches_its_model(demo_day, doc, check, anon, tech, sup):
           sup.post(f"/api/v1/readings/{replay['id']}/review", json={"decision": "retake", "comment": "again"}))
     reviewed = check("GET", f"/api/v1/readings/{replay['id']}", tech.get(f"/api/v1/readings/{replay['id']}"))
     assert reviewed["review"]["decision"] == "retake" and len(reviewed["reviews"]) == 1
+    points = check("GET", f"/api/v1/readings/{replay['id']}/torque-speed.json",
+                   tech.get(f"/api/v1/readings/{replay['id']}/torque-speed.json"))
+    assert len(points["speed_rpm"]) == len(points["torque_measured_v_nm"]) > 100
     asked = check("GET", "/api/v1/retakes", tech.get("/api/v1/retakes"))["readings"]
     assert [r["id"] for r in asked] == [replay["id"]] and asked[0]["review"]["comment"] == "again"
     entries = check("GET", "/api/v1/audit", sup.get("/api/v1/audit"))["entries"]

@@ -107,6 +107,27 @@ class Reading(_Response):
     result: Result  # type: ignore[valid-type]
 
 
+class TorqueSpeedCurve(_Response):
+    """The torque-speed picture as numbers: the motor's shaft torque at the measured and at rated voltage
+    and the driven load's torque, over speed from standstill to synchronous; null where undefined."""
+    speed_rpm: list[Optional[float]]
+    torque_measured_v_nm: list[Optional[float]]
+    torque_rated_v_nm: list[Optional[float]]
+    load_torque_nm: list[Optional[float]]
+    operating_speed_rpm: Optional[float]
+    operating_torque_nm: Optional[float]
+    breakdown_speed_rpm: Optional[float]
+    breakdown_torque_nm: Optional[float]
+    rated_torque_nm: Optional[float]
+    sync_speed_rpm: Optional[float]
+    measured_voltage_v: Optional[float]
+    rated_voltage_v: Optional[float]
+    driven_load: Optional[str]
+    operating_side: Optional[str] = Field(description="stable or unstable side of breakdown; null without a point")
+    measured_speed_rpm: Optional[float]
+    flags: list[str] = Field(description="the stored result's flag codes")
+
+
 class ReadingList(_Response):
     count: int
     readings: list[Reading]
@@ -193,7 +214,7 @@ class Error(_Response):
     error: ErrorDetail
 
 
-RESPONSE_MODELS = {m.__name__: m for m in (Error, Session, Motor, MotorDetail, MotorList, Reading, ReadingList,
+RESPONSE_MODELS = {m.__name__: m for m in (Error, Session, Motor, MotorDetail, MotorList, Reading, ReadingList, TorqueSpeedCurve,
                                            ReviewCreated, Result, Health, AuditList)}
 
 

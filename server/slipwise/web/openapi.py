@@ -150,6 +150,9 @@ ROUTES: list[tuple] = [
     ("/readings/{reading_id}/torque-speed.svg", "get", TECH, "torque-speed picture: motor at rated and measured "
      "voltage, load, operating and breakdown points", [ID["reading_id"]], None,
      {"200": SVG, "304": {"description": "not modified (ETag)"}}, "400 401 404"),
+    ("/readings/{reading_id}/torque-speed.json", "get", TECH, "the torque-speed picture's curves and points as "
+     "numbers (rpm, N·m) for a client to draw", [ID["reading_id"]], None,
+     {"200": ("curves and points", "TorqueSpeedCurve")}, "400 401 404"),
     ("/readings/{reading_id}/review", "post", SUP, "review a reading: accepted, retake or rejected",
      [ID["reading_id"], CSRF], "ReviewInput", {"201": ("the review", "ReviewCreated")}, "400 401 403 404 413 415"),
     ("/export.csv", "get", SUP, "the commissioning record as CSV, one row per reading", EXPORT_Q, None,

@@ -16,7 +16,7 @@ from slipwise.store.types import utcnow
 from .auth import requires
 from .params import date_param, flag_param, int_param, query, text_param
 from .picture import picture_title, render_torque_speed_svg
-from .render import day_log_json, reading_record_json, review_json
+from .render import curve_json, day_log_json, reading_record_json, review_json
 from .security import SVG_CONTENT_SECURITY_POLICY, json_body
 from .state import state
 
@@ -98,6 +98,17 @@ def picture(reading_id: int):
     resp.headers["Cache-Control"] = "private, max-age=3600"
     resp.headers["Content-Security-Policy"] = SVG_CONTENT_SECURITY_POLICY
     return resp
+
+
+@bp.get("/readings/<id:reading_id>/torque-speed.json")
+@requires("technician")
+def picture_points(reading_id: int):
+    """The same curves and points as the SVG picture, as numbers, for the page to draw (and keep offline)."""
+    query(())
+    st = state()
+    record, summary = services.picture_record(st.db, reading_id)
+    curve = with_stored_result(torque_speed(record, st.thresholds), summary["result"], record["speed_rpm"])
+    return _json(curve_json(curve, summary["result"], record["speed_rpm"]))
 
 
 @bp.post("/readings/<id:reading_id>/review")

@@ -9,6 +9,8 @@ the stored text itself is never rewritten).
 
 from __future__ import annotations
 
+import math
+
 import json
 from typing import Any, Iterable, Mapping
 
@@ -95,3 +97,28 @@ def motor_record_dict(record: MotorRecord) -> dict[str, Any]:
 def audit_entry_dict(row: Mapping[str, Any]) -> dict[str, Any]:
     return {"id": row["id"], "at": row["at"].isoformat(), "actor": row["actor"], "action": row["action"],
             "object_type": row["object_type"], "object_id": row["object_id"], "detail": json.loads(row["detail"])}
+
+
+_CURVE_ARRAYS = ("speed_rpm", "torque_measured_v_nm", "torque_rated_v_nm", "load_torque_nm")
+_CURVE_NUMBERS = ("operating_speed_rpm", "operating_torque_nm", "breakdown_speed_rpm", "breakdown_torque_nm",
+                  "rated_torque_nm", "sync_speed_rpm", "measured_voltage_v", "rated_voltage_v")
+
+
+def _num(x, digits: int):
+    if x is None:
+        return None
+    x = float(x)
+    return round(x, digits) if math.isfinite(x) else None
+
+
+def curve_json(curve: Mapping[str, Any], result: Mapping[str, Any], measured_speed_rpm: float) -> str:
+    """The torque-speed curves of a stored reading as numbers (N·m and rpm, 3 decimals; null where undefined),
+    with the measured speed and the stored result's ``operating_side`` and ``flags`` so the page's caption
+    agrees with the findings."""
+    out: dict[str, Any] = {k: [_num(v, 3) for v in curve[k]] for k in _CURVE_ARRAYS}
+    out.update({k: _num(curve.get(k), 3) for k in _CURVE_NUMBERS})
+    out["driven_load"] = curve.get("driven_load")
+    out["operating_side"] = result.get("operating_side") or None
+    out["measured_speed_rpm"] = _num(measured_speed_rpm, 3)
+    out["flags"] = list(result.get("flags") or [])
+    return _dumps(out)
