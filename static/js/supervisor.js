@@ -179,11 +179,11 @@ export function historyBlock(reading, motor) {
   const items = [];
   if (reading.supersedes) items.push(h("li", {}, "Replaces ", h("a", { href: `#/reading/${reading.supersedes}` }, `reading ${reading.supersedes}`)));
   if (reading.superseded_by) items.push(h("li", {}, "Replaced by ", h("a", { href: `#/reading/${reading.superseded_by}` }, `reading ${reading.superseded_by}`)));
-  items.push(h("li", {}, `Received by the server ${reading.received_at.replace("T", " ").slice(0, 19)} UTC; engine ${reading.engine_version}`));
+  items.push(h("li", {}, `Received by the server ${showTime(reading.received_at)}; engine ${reading.engine_version}`));
   // every review when the detail carries them (GET /readings/{id}), else the latest one
   const reviews = Array.isArray(reading.reviews) ? reading.reviews : (reading.review ? [reading.review] : []);
   for (const rv of reviews) {
-    items.push(h("li", {}, `Reviewed ${rv.reviewed_at.replace("T", " ").slice(0, 16)} UTC by ${rv.reviewer}: ${reviewWord(rv.decision)}`
+    items.push(h("li", {}, `Reviewed ${showTime(rv.reviewed_at)} by ${rv.reviewer_name || rv.reviewer}: ${reviewWord(rv.decision)}`
       + (rv.comment ? ` (${rv.comment})` : "")));
   }
   if (motor) items.push(h("li", {}, `Nameplate revision ${reading.motor_revision} of ${motor.revision}${motor.revision > reading.motor_revision ? " (the nameplate was edited since)" : ""}`));

@@ -340,6 +340,11 @@ def test_retake_button_on_the_reading_itself(new_context, service):
     sign_in(page, "tess")
     page.goto(f"/#/reading/{old['id']}")
     page.wait_for_selector("#take-again-asked")
+    # one time format on the page (issue 12, item 6): every date-time reads "YYYY-MM-DD HH:MM UTC±hh:mm"
+    text = page.text_content("main")
+    stamps = re.findall(r"\d{4}-\d{2}-\d{2}[ T]\d{2}:\d{2}(?::\d{2})?(?: ?UTC[+-]?\d{0,2}:?\d{0,2})?", text)
+    assert len(stamps) >= 3 and all(re.fullmatch(r"\d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC(?:[+-]\d{2}:\d{2})?", x) for x in stamps), stamps
+    assert "Sam Lindqvist" in page.text_content("#review-state")  # the reviewer by full name
     page.click("#take-again-asked")
     page.wait_for_selector("#retake-note")
     assert "phase 2 clamp reading" in page.text_content("#retake-note")
