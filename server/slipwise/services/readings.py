@@ -67,6 +67,16 @@ def day_log(db: Database, *, limit: int = 100_000, **filters) -> list[RowMapping
         return store.reading_rows(conn, limit=limit, **filters)
 
 
+def day_listing(db: Database, *, limit: int, after: int | None = None, **filters) -> tuple[list[RowMapping], bool]:
+    """One page of the day's listing (the few columns a table of the day shows) and whether more follow.
+
+    Pages are in the order taken; ``after`` is the id of the last reading of the previous page.
+    """
+    with db.read() as conn:
+        rows = store.listing_rows(conn, limit=limit + 1, after=after, **filters)
+    return rows[:limit], len(rows) > limit
+
+
 def export_rows(db: Database, **filters) -> Iterator[RowMapping]:
     """Rows for the CSV record (date, site filters), streamed inside one read transaction."""
     with db.read() as conn:
