@@ -129,6 +129,13 @@ def table(m: dict, engine: dict, service: dict, page: dict, load: dict, quick: b
                      yes(service["submit_p99_ms"] <= 100 and service["submit_errors"] == 0)))
     rows.append((f"Day's log of {service['day_log_readings']:,} readings as JSON (GET /readings?date=)", "≤ 300 ms",
                  f"{service['day_log_ms']:.0f} ms ({service['day_log_mb']:.1f} MB)", yes(service["day_log_ms"] <= 300)))
+    if "listing_ratio" in service:
+        rows.append((f"Day's listing the supervisor's page draws ({service['listing_readings']:,} readings, "
+                     f"{service['listing_pages']} pages by next): bytes per reading", "≤ 800",
+                     f"{service['listing_bytes_per_reading']:.0f}", yes(service["listing_bytes_per_reading"] <= 800)))
+        rows.append(("Day's listing: time over HTTP as a ratio of its bare query + json.dumps of the same rows "
+                     "(same run)", "≤ 5×", f"{service['listing_ratio']:.2f}× ({service['listing_ms']:.0f} ms vs "
+                     f"{service['listing_bare_ms']:.0f} ms)", yes(service["listing_ratio"] <= 5)))
     rows.append((f"CSV export of {service['export_readings']:,} readings, as a ratio of pandas to_csv of the same frame",
                  "≤ 2×", f"{service['export_ratio']:.2f}× ({service['export_s']:.2f} s vs "
                  f"{service['pandas_to_csv_s']:.2f} s, {service['export_mb']:.0f} MB)", yes(service["export_ratio"] <= 2)))
