@@ -22,6 +22,7 @@ ACCESS = {
     ("PUT", "/api/v1/motors/<id:motor_id>"): "supervisor",
     ("POST", "/api/v1/readings"): "technician",
     ("GET", "/api/v1/readings"): "technician",
+    ("GET", "/api/v1/readings/listing"): "technician",
     ("GET", "/api/v1/readings/<id:reading_id>"): "technician",
     ("GET", "/api/v1/readings/<id:reading_id>/torque-speed.svg"): "technician",
     ("POST", "/api/v1/readings/<id:reading_id>/review"): "supervisor",
