@@ -1,4 +1,6 @@
 // Supervisor screens: the day's log with filters, summary and sorting; review; CSV record.
+// The log draws from the lean listing (GET /readings/listing, paged by `next`); a reading's whole record
+// is fetched when its row is opened (#/reading/{id}).
 
 import { api, ApiError, NetworkError } from "./api.js";
 import { clear, fmt, h, localDate, s, showTime } from "./dom.js";
@@ -13,9 +15,9 @@ const COLUMNS = [
   { key: "site", label: "Site", get: (r) => r.site },
   { key: "tag", label: "Tag", get: (r) => r.tag },
   { key: "technician", label: "Technician", get: (r) => r.technician },
-  { key: "load_pct", label: "Load %", num: true, get: (r) => r.result.load_pct },
-  { key: "flags", label: "Findings", get: (r) => (r.result.flags || []).length },
-  { key: "review", label: "Review", get: (r) => (r.review ? r.review.decision : "") },
+  { key: "load_pct", label: "Load %", num: true, get: (r) => r.load_pct },
+  { key: "flags", label: "Findings", get: (r) => r.flags.length },
+  { key: "review", label: "Review", get: (r) => r.review_decision || "" },
 ];
 
 const state = { filters: null, sort: { key: "taken_at", dir: 1 } };
@@ -25,7 +27,7 @@ function histogram(readings) {
   const bins = new Array(top / binW + 1).fill(0); // last bin: 150 % and above
   let none = 0;
   for (const r of readings) {
-    const p = r.result.load_pct;
+    const p = r.load_pct;
     if (p == null) { none += 1; continue; }
     bins[Math.min(Math.floor(Math.max(p, 0) / binW), bins.length - 1)] += 1;
   }
@@ -53,8 +55,8 @@ function histogram(readings) {
 
 function summary(readings) {
   const counts = {};
-  for (const r of readings) for (const f of r.result.flags || []) counts[f] = (counts[f] || 0) + 1;
-  const reviewed = readings.filter((r) => r.review).length;
+  for (const r of readings) for (const f of r.flags) counts[f] = (counts[f] || 0) + 1;
+  const reviewed = readings.filter((r) => r.review_decision).length;
   return h("section", { class: "panel", "aria-labelledby": "sum-h", id: "summary" },
     h("h2", { id: "sum-h" }, "Summary"),
     h("p", {}, `${readings.length} reading(s), ${reviewed} reviewed, ${readings.length - reviewed} to review.`),
@@ -86,14 +88,26 @@ function table(readings) {
       h("td", {}, r.site),
       h("td", {}, h("a", { href: `#/reading/${r.id}` }, r.tag)),
       h("td", {}, r.technician_name || r.technician),
-      h("td", { class: "num" }, fmt(r.result.load_pct, 0)),
-      h("td", {}, (r.result.flags || []).map((f) => FLAG_WORDS[f] || f).join(", ") || "–"),
-      h("td", {}, r.review ? h("span", { class: ["state", r.review.decision] }, reviewWord(r.review.decision)) : h("span", { class: "state none" }, "to review")));
+      h("td", { class: "num" }, fmt(r.load_pct, 0)),
+      h("td", {}, r.flags.map((f) => FLAG_WORDS[f] || f).join(", ") || "–"),
+      h("td", {}, r.review_decision ? h("span", { class: ["state", r.review_decision] }, reviewWord(r.review_decision)) : h("span", { class: "state none" }, "to review")));
     tr.addEventListener("click", (ev) => { if (ev.target.tagName !== "A") go(`#/reading/${r.id}`); });
     return tr;
   });
   return h("div", { class: "table-wrap", id: "log-table" },
     h("table", {}, h("caption", { class: "sr-only" }, "Readings of the day; column headers sort"), h("thead", {}, head), h("tbody", {}, body)));
+}
+
+/** Every page of the listing, following `next` (a URL under /api/v1); null when the screen was left. */
+async function listing(path, stillWanted) {
+  const rows = [];
+  for (let next = path; next; ) {
+    const r = await api("GET", next);
+    if (!stillWanted()) return null;
+    rows.push(...r.data.readings);
+    next = r.data.next ? r.data.next.replace(/^\/api\/v1/, "") : null;
+  }
+  return rows;
 }
 
 export async function renderLog(el, _arg, seq) {
@@ -110,13 +124,14 @@ export async function renderLog(el, _arg, seq) {
   const load = async () => {
     state.filters = { date: date.value, site: site.value, technician: techn.value.trim(), flag: flag.value };
     const q = new URLSearchParams(Object.entries(state.filters).filter(([, v]) => v));
-    const eq = new URLSearchParams(Object.entries({ date: date.value, site: site.value }).filter(([, v]) => v));
+    // the record follows the day log's filters (technician and finding too)
+    const eq = new URLSearchParams(Object.entries(state.filters).filter(([, v]) => v));
     csv.href = `/api/v1/export.csv?${eq}`;
     clear(out, h("p", { class: "muted", role: "status" }, "Loading…"));
     try {
-      const r = await api("GET", `/readings?${q}`);
-      if (!routeIsCurrent(seq)) return;
-      clear(out, summary(r.data.readings), r.data.readings.length ? table(r.data.readings) : h("p", { class: "panel" }, "No readings for these filters."));
+      const readings = await listing(`/readings/listing?${q}`, () => routeIsCurrent(seq));
+      if (!readings || !routeIsCurrent(seq)) return;
+      clear(out, summary(readings), readings.length ? table(readings) : h("p", { class: "panel" }, "No readings for these filters."));
     } catch (e) {
       clear(out, h("p", { class: "error", role: "alert" }, e instanceof NetworkError ? "Offline: the day's log needs the network." : e.message));
     }

@@ -12,6 +12,9 @@ folder otherwise. Figures:
    Goal: ratio >= 0.4, zero errors, p99 <= 100 ms.
 2. The day's log of 10,000 readings as JSON (GET /api/v1/readings?date=...).
    Goal: <= 300 ms.
+   And the lean listing the supervisor's page draws from (GET /api/v1/readings/listing, every page
+   followed by next): bytes per reading (goal <= 800) and its time as a ratio of the listing's own SQL
+   on the driver's cursor plus json.dumps of the same rows, in this process (goal <= 5).
 3. The CSV export of 100,000 readings against pandas ``to_csv`` of the same
    frame. Goal: <= 2x.
 """
@@ -161,6 +164,50 @@ def median_time(fn, repeat: int) -> tuple[float, object]:
     return statistics.median(times), value
 
 
+def bare_listing(db: Database, date: str) -> tuple[float, int]:
+    """The listing's own SQL statement run on the driver's cursor, its rows encoded with json.dumps: the
+    least any listing of these rows can cost in this process. Returns (seconds, rows)."""
+    from slipwise.store.readings import _filtered, _listing_select
+    q = _filtered(_listing_select(), date=date)
+    compiled = q.compile(dialect=db.engine.dialect)
+    raw = db.engine.raw_connection()
+    try:
+        params = compiled.params if db.dialect == "postgresql" else tuple(compiled.params[k] for k in compiled.positiontup)
+
+        def run():
+            cur = raw.cursor()
+            cur.execute(str(compiled), params)
+            rows = cur.fetchall()
+            cur.close()
+            raw.rollback()
+            return json.dumps(rows), len(rows)
+        elapsed, (_, n) = median_time(run, 5)
+    finally:
+        raw.close()
+    return elapsed, n
+
+
+def listing_figures(base: str, token: str, db: Database, date: str, count: int) -> dict:
+    """Issue 13, goal 2: the day's listing (every page, following next) against a bare query + JSON encoding."""
+    def walk():
+        url, size, rows, pages = f"/api/v1/readings/listing?date={date}", 0, 0, 0
+        while url:
+            _, body = call(base, "GET", url, token)  # next is relative to the server's root
+            page = json.loads(body)
+            size, rows, pages, url = size + len(body), rows + page["count"], pages + 1, page["next"]
+        return size, rows, pages
+    elapsed, (size, rows, pages) = median_time(walk, 5)
+    bare_s, bare_rows = bare_listing(db, date)
+    assert rows == bare_rows == count, (rows, bare_rows, count)
+    ratio = elapsed / bare_s
+    print(f"2b. day's listing: {rows} readings in {pages} page(s), {size / rows:.0f} bytes per reading "
+          f"({size / 1e6:.2f} MB) in {elapsed * 1000:.0f} ms over HTTP (median of 5); the listing's query on the "
+          f"driver's cursor + json.dumps of the same rows {bare_s * 1000:.0f} ms; ratio {ratio:.2f} "
+          "(goals: <= 800 bytes per reading, ratio <= 5)")
+    return {"listing_readings": rows, "listing_pages": pages, "listing_bytes_per_reading": size / rows,
+            "listing_ms": elapsed * 1000, "listing_bare_ms": bare_s * 1000, "listing_ratio": ratio}
+
+
 def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--seconds", type=int, default=10)
@@ -225,6 +272,8 @@ def main() -> int:
         print(f"2. day's log: {count} readings, {len(body) / 1e6:.1f} MB of JSON in {elapsed * 1000:.0f} ms "
               "(median of 5; goal <= 300 ms)")
         figures.update(day_log_readings=count, day_log_mb=len(body) / 1e6, day_log_ms=elapsed * 1000)
+
+        figures.update(listing_figures(base, token, db, "2025-04-01", count))
 
         more = args.export_rows - count
         if more > 0:

@@ -11,7 +11,8 @@ Runs, each as its own process (so no run warms another's caches):
 - the page's start weight: the bytes of everything the page needs to start (index.html, what it links,
   the module graph of /js/app.js, the service worker and its precache list), as files on disk,
   uncompressed, as the server sends them;
-- bench_load.py: 60 s at 32 connections with the mix of submissions, pictures, day log and export.
+- bench_load.py: 60 s at 32 connections with the mix of submissions, pictures, day log and export;
+- bench_submission_profile.py: where one submission's time goes (cProfile, in-process).
 
 The goals are the issues' (issue 2: engine; issue 3: service; issue 4: page; issue 5: load). The
 machine line says what ran them: these are shared machines, so ratios measured in one run mean more
@@ -110,7 +111,7 @@ def yes(ok: bool) -> str:
     return "yes" if ok else "**no**"
 
 
-def table(m: dict, engine: dict, service: dict, page: dict, load: dict, quick: bool) -> str:
+def table(m: dict, engine: dict, service: dict, page: dict, load: dict, quick: bool, profile: dict) -> str:
     rows = []
     rows.append((f"Engine: interpret {engine['rows']:,} readings over {engine['nameplates']:,} nameplates, as a "
                  "ratio of pandas reading the same CSV",
@@ -129,6 +130,13 @@ def table(m: dict, engine: dict, service: dict, page: dict, load: dict, quick: b
                      yes(service["submit_p99_ms"] <= 100 and service["submit_errors"] == 0)))
     rows.append((f"Day's log of {service['day_log_readings']:,} readings as JSON (GET /readings?date=)", "≤ 300 ms",
                  f"{service['day_log_ms']:.0f} ms ({service['day_log_mb']:.1f} MB)", yes(service["day_log_ms"] <= 300)))
+    if "listing_ratio" in service:
+        rows.append((f"Day's listing the supervisor's page draws ({service['listing_readings']:,} readings, "
+                     f"{service['listing_pages']} pages by next): bytes per reading", "≤ 800",
+                     f"{service['listing_bytes_per_reading']:.0f}", yes(service["listing_bytes_per_reading"] <= 800)))
+        rows.append(("Day's listing: time over HTTP as a ratio of its bare query + json.dumps of the same rows "
+                     "(same run)", "≤ 5×", f"{service['listing_ratio']:.2f}× ({service['listing_ms']:.0f} ms vs "
+                     f"{service['listing_bare_ms']:.0f} ms)", yes(service["listing_ratio"] <= 5)))
     rows.append((f"CSV export of {service['export_readings']:,} readings, as a ratio of pandas to_csv of the same frame",
                  "≤ 2×", f"{service['export_ratio']:.2f}× ({service['export_s']:.2f} s vs "
                  f"{service['pandas_to_csv_s']:.2f} s, {service['export_mb']:.0f} MB)", yes(service["export_ratio"] <= 2)))
@@ -147,6 +155,10 @@ def table(m: dict, engine: dict, service: dict, page: dict, load: dict, quick: b
     rows.append(("Load: throughput of the mix as a ratio of GET /health (same server, same run)", "reported",
                  f"{load['ratio']:.3f} ({load['rps']:.0f} vs {load['trivial_rps']:.0f} req/s; "
                  f"{load['submissions_per_s']:.0f} readings stored per second)", "–"))
+    shares = ", ".join(f"{k} {100 * v:.0f} %" for k, v in profile["shares"].items())
+    rows.append(("Submission profile (cProfile, in-process, no HTTP): where one submission's time goes", "reported",
+                 f"{profile['submit_inprocess_ms']:.1f} ms per submission vs {profile['health_inprocess_ms']:.2f} ms "
+                 f"for GET /health; {shares}", "–"))
     lines = ["| figure | goal | result | met? |", "|---|---|---|---|"]
     lines += [f"| {a} | {b} | {c} | {d} |" for a, b, c, d in rows]
     head = [
@@ -200,7 +212,9 @@ def main() -> int:
         print(json.dumps({k: v for k, v in page.items() if k != "sizes"}))
         print("== load", flush=True)
         load, _, t_load = run_script("bench_load.py", load_args, tmp, 600)
-    text = table(m, engine, service, page, load, args.quick)
+        print("== submission profile", flush=True)
+        profile, _, _ = run_script("bench_submission_profile.py", ["--count", "50" if args.quick else "200"], tmp, 600)
+    text = table(m, engine, service, page, load, args.quick, profile)
     Path(args.output).write_text(text, encoding="utf-8")
     print()
     print(text)

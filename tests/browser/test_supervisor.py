@@ -36,6 +36,8 @@ def test_supervisor_review_and_csv_desktop(new_context, service):
     ctx = new_context(DESKTOP)
     page = ctx.new_page()
     sign_in(page, "sam")
+    asked = []
+    page.on("request", lambda req: asked.append(req.url.split("/api/v1", 1)[-1]) if "/api/v1/readings" in req.url else None)
     page.click("#tabs a[data-screen=log]")
     page.wait_for_selector("#filters")
     page.select_option("#flt-site", SITE)
@@ -56,6 +58,9 @@ def test_supervisor_review_and_csv_desktop(new_context, service):
     assert order == sorted(ids, key=lambda i: -loads[i])
     assert page.get_attribute("#log-table th:has(button[data-sort=load_pct])", "aria-sort") == "descending"
     shot(page, "sup-01-day-log")
+    # the table was drawn from the lean listing, not from the whole records (issue 13)
+    assert any(u.startswith("/readings/listing?") for u in asked), asked
+    assert not any(u.startswith("/readings?") for u in asked), asked
 
     # CSV record with one click
     with page.expect_download() as dl:
@@ -71,6 +76,7 @@ def test_supervisor_review_and_csv_desktop(new_context, service):
     target = ids[0]
     page.click(f"#log-table tbody tr[data-id='{target}'] a")
     page.wait_for_selector("#review-form")
+    assert f"/readings/{target}" in asked  # the whole record, fetched when its row is opened
     page.click("#review-form input[value=retake]")
     page.click("#review-submit")
     page.wait_for_selector("#review-error:not(:empty)")  # the server asks for the comment

@@ -17,7 +17,8 @@ from pydantic import BaseModel, ConfigDict, Field, create_model
 from pydantic.json_schema import models_json_schema
 
 from .fields import (CHOICE_FIELDS, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS, NUMBER_FIELDS,
-                     READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_RESULT_COLUMNS)
+                     READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_RESULT_COLUMNS,
+                     VERDICT_WORDS)
 
 REF_TEMPLATE = "#/components/schemas/{model}"
 
@@ -133,6 +134,30 @@ class ReadingList(_Response):
     readings: list[Reading]
 
 
+class ListedReading(_Response):
+    """One row of the day's listing: what the table of the day shows; the rest is GET /readings/{id}."""
+    id: int
+    motor_id: int
+    site: str
+    tag: str
+    technician: str
+    technician_name: str
+    taken_at: str
+    superseded_by: Optional[int]
+    review_decision: Optional[Literal[REVIEW_DECISIONS]] = Field(  # type: ignore[valid-type]
+        description="the latest review's decision; null before any")
+    verdict: Optional[Literal[VERDICT_WORDS]] = Field(  # type: ignore[valid-type]
+        description="the result's verdict (null for results stored by engine 1.0.0)")
+    load_pct: Optional[float] = Field(description="the result's load_pct [%]")
+    flags: list[FlagCode] = Field(description="the result's flag codes")  # type: ignore[valid-type]
+
+
+class ReadingListing(_Response):
+    count: int = Field(description="readings on this page")
+    readings: list[ListedReading]
+    next: Optional[str] = Field(description="relative URL of the next page; null on the last page")
+
+
 class ReviewCreated(_Response):
     id: int
     reading_id: int
@@ -215,6 +240,7 @@ class Error(_Response):
 
 
 RESPONSE_MODELS = {m.__name__: m for m in (Error, Session, Motor, MotorDetail, MotorList, Reading, ReadingList, TorqueSpeedCurve,
+                                           ReadingListing,
                                            ReviewCreated, Result, Health, AuditList)}
 
 

@@ -75,6 +75,16 @@ def open_retakes(db: Database, user: Mapping[str, Any]) -> list[RowMapping]:
         return store.open_retake_rows(conn, technician=None if user["role"] == "supervisor" else user["username"])
 
 
+def day_listing(db: Database, *, limit: int, after: int | None = None, **filters) -> tuple[list[RowMapping], bool]:
+    """One page of the day's listing (the few columns a table of the day shows) and whether more follow.
+
+    Pages are in the order taken; ``after`` is the id of the last reading of the previous page.
+    """
+    with db.read() as conn:
+        rows = store.listing_rows(conn, limit=limit + 1, after=after, **filters)
+    return rows[:limit], len(rows) > limit
+
+
 def export_rows(db: Database, **filters) -> Iterator[RowMapping]:
     """Rows for the CSV record (date, site filters), streamed inside one read transaction."""
     with db.read() as conn:

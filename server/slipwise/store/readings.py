@@ -16,7 +16,11 @@ import functools
 from datetime import datetime
 from typing import Any, Iterable, Iterator, Mapping
 
-from sqlalchemy import Connection, RowMapping, bindparam, func, select
+import re
+
+from sqlalchemy import Connection, Float, RowMapping, String, and_, bindparam, func, or_, select
+from sqlalchemy.ext.compiler import compiles
+from sqlalchemy.sql.expression import ColumnElement
 from sqlalchemy.exc import IntegrityError
 
 from .errors import DuplicateError
@@ -127,6 +131,63 @@ def review_history_rows(conn: Connection, reading_ids: Iterable[int]) -> list[Ro
 def reading_rows(conn: Connection, *, limit: int = 100_000, **filters) -> list[RowMapping]:
     """Readings in the order they were taken; filters: date, site, technician, flag, motor_id."""
     return conn.execute(_filtered(_reading_select(), **filters).limit(limit)).mappings().all()
+
+
+class _JsonMember(ColumnElement):
+    """A top-level member of a JSON text column, read by the database (SQLite json_extract, PostgreSQL ->>):
+    a number as a number, a list as its JSON text."""
+
+    inherit_cache = True
+
+    def __init__(self, column, key: str, type_):
+        if not re.fullmatch(r"[a-z_][a-z0-9_]*", key):
+            raise ValueError(f"not a result column name: {key!r}")
+        self.column, self.key_name, self.type = column, key, type_
+
+
+@compiles(_JsonMember, "sqlite")
+def _json_member_sqlite(element, compiler, **kw):
+    return f"json_extract({compiler.process(element.column, **kw)}, '$.{element.key_name}')"
+
+
+@compiles(_JsonMember, "postgresql")
+def _json_member_postgresql(element, compiler, **kw):
+    text = f"(CAST({compiler.process(element.column, **kw)} AS json) ->> '{element.key_name}')"
+    return f"CAST({text} AS double precision)" if isinstance(element.type, Float) else text
+
+
+def _listing_select():
+    """The day's listing: what a table of the day needs, the verdict, load and flags read out of the stored
+    result by the database's own JSON functions (no result is parsed in Python, none is sent whole)."""
+    latest = (select(reviews.c.reading_id, func.max(reviews.c.id).label("review_id"))
+              .group_by(reviews.c.reading_id).subquery())
+    cols = [readings.c.id, readings.c.motor_id, sites.c.name.label("site"), motors.c.tag,
+            _tech.c.username.label("technician"), _tech.c.full_name.label("technician_name"), readings.c.taken_at,
+            _superseding.c.id.label("superseded_by"), _review.c.decision.label("review_decision"),
+            _JsonMember(readings.c.result, "verdict", String()).label("verdict"),
+            _JsonMember(readings.c.result, "load_pct", Float()).label("load_pct"),
+            _JsonMember(readings.c.result, "flags", String()).label("flags")]
+    return (select(*cols).select_from(readings)
+            .join(motors, motors.c.id == readings.c.motor_id)
+            .join(sites, sites.c.id == motors.c.site_id)
+            .join(_tech, _tech.c.id == readings.c.technician_id)
+            .outerjoin(_superseding, _superseding.c.supersedes_id == readings.c.id)
+            .outerjoin(latest, latest.c.reading_id == readings.c.id)
+            .outerjoin(_review, _review.c.id == latest.c.review_id))
+
+
+def listing_rows(conn: Connection, *, limit: int, after: int | None = None, **filters) -> list[RowMapping]:
+    """The day's listing in the order taken, at most ``limit`` rows, starting after reading ``after``.
+
+    ``after`` is the id of the last row of the previous page: the next page starts after its
+    (taken_at_utc, id), the listing's order, so each reading is on exactly one page however the
+    readings taken before it change. ``flags`` comes back as the stored JSON text of the list.
+    """
+    q = _listing_select()
+    if after is not None:
+        at = select(readings.c.taken_at_utc).where(readings.c.id == after).scalar_subquery()
+        q = q.where(or_(readings.c.taken_at_utc > at, and_(readings.c.taken_at_utc == at, readings.c.id > after)))
+    return conn.execute(_filtered(q, **filters).limit(limit)).mappings().all()
 
 
 def iter_export_rows(conn: Connection, **filters) -> Iterator[RowMapping]:

@@ -36,6 +36,7 @@ DEFAULTS: dict[str, Any] = {
     "MAX_CONTENT_LENGTH": 256 * 1024,
     "SESSION_HOURS": 12,           # one shift
     "SESSION_COOKIE_SECURE": False,  # True forces Secure cookies behind a TLS-terminating proxy
+    "PROXY_HOPS": 0,               # proxies (load balancers) in front whose X-Forwarded-For/-Proto are trusted
     "AUTO_UPGRADE": True,          # upgrade an older schema at start (a newer one is always refused)
     "STATIC_DIR": None,            # default: static/ at the repository root
 }
@@ -104,6 +105,15 @@ def create_app(test_config: Mapping[str, Any] | None = None) -> Flask:
         logging.getLogger("slipwise.web").warning("database not usable at start (%s); checking again per request",
                                                   str(getattr(e, "orig", None) or e).strip().splitlines()[0][:200])
     app.extensions["slipwise"] = st
+
+    hops = int(app.config["PROXY_HOPS"] or 0)
+    if hops < 0:
+        raise ValueError("PROXY_HOPS must be 0 or more")
+    if hops:
+        # behind a balancer every request comes from its address: the login throttle's per-address key and
+        # Secure cookies need the client's address and scheme, which only the trusted hops may say
+        from werkzeug.middleware.proxy_fix import ProxyFix
+        app.wsgi_app = ProxyFix(app.wsgi_app, x_for=hops, x_proto=hops)  # type: ignore[method-assign]
 
     app.url_map.converters["id"] = IdConverter
     app.url_map.converters["path"] = PagePathConverter

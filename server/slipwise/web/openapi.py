@@ -145,6 +145,13 @@ ROUTES: list[tuple] = [
     ("/retakes", "get", TECH, "retakes still asked for, any day, oldest first: a technician's own, or all for a "
      "supervisor; a retake is answered by a reading that supersedes it", [], None,
      {"200": ("readings", "ReadingList")}, "400 401"),
+    ("/readings/listing", "get", TECH, "the day's log as a lean listing in pages, ordered by taken_at: a few keys "
+     "per reading (the whole reading is GET /readings/{reading_id}); follow next until it is null",
+     READINGS_Q[:-1] + [_q("limit", "readings per page (default 2000)", {"type": "integer", "minimum": 1,
+                                                                          "maximum": 10000}),
+                        _q("after", "the id of the last reading of the previous page (next gives it)",
+                           {"type": "integer", "minimum": 1, "maximum": MAX_ID})], None,
+     {"200": ("one page of the listing", "ReadingListing")}, "400 401"),
     ("/readings/{reading_id}", "get", TECH, "one reading with its interpretation and review", [ID["reading_id"]],
      None, {"200": ("the reading", "Reading")}, "400 401 404"),
     ("/readings/{reading_id}/torque-speed.svg", "get", TECH, "torque-speed picture: motor at rated and measured "

@@ -4,7 +4,9 @@ from __future__ import annotations
 
 import hashlib
 
-from flask import Blueprint, Response, g, request
+from urllib.parse import urlencode
+
+from flask import Blueprint, Response, g, request, url_for
 
 from slipwise.contract import MAX_ID
 from slipwise.contract.models import READING_NAMES, ReadingInput, ReviewInput, parse_body, taken_at
@@ -16,7 +18,7 @@ from slipwise.store.types import utcnow
 from .auth import requires
 from .params import date_param, flag_param, int_param, query, text_param
 from .picture import picture_title, render_torque_speed_svg
-from .render import curve_json, day_log_json, reading_record_json, review_json
+from .render import curve_json, day_log_json, listing_json, reading_record_json, review_json
 from .security import SVG_CONTENT_SECURITY_POLICY, json_body
 from .state import state
 
@@ -25,6 +27,8 @@ bp = Blueprint("readings", __name__)
 SUBMISSION_FIELDS = frozenset(ReadingInput.model_fields)   # the accepted keys (the document shows the same model)
 
 LIST_LIMIT = 100_000
+LISTING_PAGE = 2_000      # readings per page of the listing unless limit says otherwise
+LISTING_LIMIT = 10_000
 
 
 def _json(text: str, status: int = 200) -> Response:
@@ -64,6 +68,25 @@ def retakes():
     """The readings a supervisor asked to take again that no new reading has answered yet, any day."""
     query(())
     return _json(day_log_json(services.open_retakes(state().db, g.user)))
+
+
+@bp.get("/readings/listing")
+@requires("technician")
+def listing():
+    """The day's log as a lean listing, paged: ``next`` is the relative URL of the next page, null on the last."""
+    names = ("date", "site", "flag", "technician", "motor_id", "limit", "after")
+    args = query(names)
+    filters = dict(date=date_param(args), site=text_param(args, "site"), flag=flag_param(args),
+                   technician=text_param(args, "technician", 64),
+                   motor_id=int_param(args, "motor_id", 1, MAX_ID))
+    limit = int_param(args, "limit", 1, LISTING_LIMIT, LISTING_PAGE)
+    after = int_param(args, "after", 1, MAX_ID)
+    rows, more = services.day_listing(state().db, limit=limit, after=after, **filters)
+    next_url = None
+    if more:
+        given = {k: args[k] for k in names if args.get(k) and k != "after"}
+        next_url = url_for(".listing") + "?" + urlencode({**given, "after": rows[-1]["id"]})
+    return _json(listing_json(rows, next_url))
 
 
 @bp.get("/readings/<id:reading_id>")

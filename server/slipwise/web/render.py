@@ -67,6 +67,20 @@ def day_log_json(rows: Iterable[Mapping[str, Any]]) -> str:
     return '{"count":' + str(len(parts)) + ',"readings":[' + ",".join(parts) + "]}"
 
 
+LISTING_KEYS = ("id", "motor_id", "site", "tag", "technician", "technician_name", "taken_at", "superseded_by",
+                "review_decision", "verdict", "load_pct")
+
+
+def listing_json(rows: Iterable[Mapping[str, Any]], next_url: str | None) -> str:
+    """``{"count": n, "readings": [...], "next": url or null}``: the day's listing, a few keys per reading.
+
+    ``flags`` is the stored result's own JSON text of the list, spliced in as it is.
+    """
+    parts = [_dumps({k: r[k] for k in LISTING_KEYS})[:-1] + ',"flags":' + (r["flags"] or "[]") + "}" for r in rows]
+    return ('{"count":' + str(len(parts)) + ',"readings":[' + ",".join(parts) + '],"next":' + _dumps(next_url)
+            + "}")
+
+
 def review_json(review: Review) -> str:
     head = {"id": review.id, "reading_id": review.reading_id, "decision": review.decision,
             "comment": review.comment, "reviewer": review.reviewer, "reviewed_at": review.reviewed_at.isoformat()}
