@@ -5,13 +5,15 @@
 import { api, ApiError, NetworkError } from "./api.js";
 import { clear, fmt, h, localDate, s, showTime } from "./dom.js";
 import { FIELD, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, READING_NUMBERS } from "./fields.js";
-import { FLAG_WORDS, LIMITS, reviewWord } from "./result.js";
+import { FLAG_WORDS, LIMITS, reviewWord, verdict } from "./result.js";
 import { go, routeIsCurrent } from "./router.js";
 import { toast } from "./shell.js";
 
 const FLAGS = Object.keys(FLAG_WORDS);
 const COLUMNS = [
-  { key: "taken_at", label: "Taken", get: (r) => r.taken_at },
+  // by the instant, not the text: readings of a -06:00 and a +01:00 site interleave in the order taken
+  { key: "taken_at", label: "Taken", get: (r) => Date.parse(r.taken_at) },
+  { key: "verdict", label: "Verdict", get: (r) => ["sound", "watch", "retake", "act"].indexOf(verdict(r).word) },
   { key: "site", label: "Site", get: (r) => r.site },
   { key: "tag", label: "Tag", get: (r) => r.tag },
   { key: "technician", label: "Technician", get: (r) => r.technician },
@@ -20,7 +22,9 @@ const COLUMNS = [
   { key: "review", label: "Review", get: (r) => r.review_decision || "" },
 ];
 
-const state = { filters: null, sort: { key: "taken_at", dir: 1 } };
+// the log's place survives opening a reading: filters, sort, scroll position, the row last opened, and the
+// order of the rows (for previous/next on the reading)
+export const state = { filters: null, sort: { key: "taken_at", dir: 1 }, scrollY: 0, opened: null, order: [] };
 
 function histogram(readings) {
   const W = 620, H = 210, left = 36, bottom = 176, binW = 10, top = 150;
@@ -76,22 +80,29 @@ function table(readings) {
     if (y == null) return -1;
     return (x < y ? -1 : x > y ? 1 : 0) * dir;
   });
-  const head = h("tr", {}, COLUMNS.map((c) => h("th", { scope: "col", class: c.num ? "num" : null,
+  const head = h("tr", {}, h("th", { scope: "col" }, h("span", { class: "sr-only" }, "Select")), COLUMNS.map((c) => h("th", { scope: "col", class: c.num ? "num" : null,
     "aria-sort": c.key === key ? (dir > 0 ? "ascending" : "descending") : "none" },
     h("button", { type: "button", dataset: { sort: c.key }, onclick: () => {
       state.sort = { key: c.key, dir: c.key === key ? -dir : 1 };
       document.getElementById("log-table").replaceWith(table(readings));
     } }, c.label))));
+  state.order = rows.map((r) => r.id);
+  const open = (id) => { state.scrollY = window.scrollY; state.opened = id; go(`#/reading/${id}`); };
   const body = rows.map((r) => {
-    const tr = h("tr", { dataset: { id: r.id } },
+    const v = verdict(r);
+    const clean = v.word === "sound" && !r.review_decision && !r.superseded_by;
+    const tr = h("tr", { dataset: { id: r.id, verdict: v.word }, class: ["v-" + v.cls, state.opened === r.id && "last-opened"] },
+      h("td", {}, clean ? h("input", { type: "checkbox", class: "pick", value: String(r.id), "aria-label": `Select ${r.tag} for accepting`,
+        onclick: (ev) => ev.stopPropagation() }) : null),
       h("td", {}, showTime(r.taken_at)),
+      h("td", {}, h("span", { class: ["verdict", "verdict-chip", v.cls] }, v.text)),
       h("td", {}, r.site),
-      h("td", {}, h("a", { href: `#/reading/${r.id}` }, r.tag)),
+      h("td", {}, h("a", { href: `#/reading/${r.id}`, onclick: (ev) => { ev.preventDefault(); open(r.id); } }, r.tag)),
       h("td", {}, r.technician_name || r.technician),
       h("td", { class: "num" }, fmt(r.load_pct, 0)),
       h("td", {}, r.flags.map((f) => FLAG_WORDS[f] || f).join(", ") || "–"),
       h("td", {}, r.review_decision ? h("span", { class: ["state", r.review_decision] }, reviewWord(r.review_decision)) : h("span", { class: "state none" }, "to review")));
-    tr.addEventListener("click", (ev) => { if (ev.target.tagName !== "A") go(`#/reading/${r.id}`); });
+    tr.addEventListener("click", (ev) => { if (ev.target.tagName !== "A" && ev.target.tagName !== "INPUT") open(r.id); });
     return tr;
   });
   return h("div", { class: "table-wrap", id: "log-table" },
@@ -108,6 +119,33 @@ async function listing(path, stillWanted) {
     next = r.data.next ? r.data.next.replace(/^\/api\/v1/, "") : null;
   }
   return rows;
+}
+
+/** Accept a run of clean readings at once: each selected one (sound, not reviewed) gets its own review. */
+function acceptBar(out, reload) {
+  const status = h("span", { class: "muted", role: "status", id: "accept-status" });
+  const selectAll = () => { for (const c of out.querySelectorAll("input.pick")) c.checked = true; };
+  const accept = async () => {
+    const ids = [...out.querySelectorAll("input.pick:checked")].map((c) => Number(c.value));
+    if (!ids.length) { status.textContent = "Select the clean readings to accept first."; return; }
+    if (!window.confirm(`Accept ${ids.length} reading(s) judged sound? Each gets its own review, signed by you.`)) return;
+    let done = 0;
+    for (const id of ids) {
+      try {
+        await api("POST", `/readings/${id}/review`, { decision: "accepted", comment: "" });
+        done += 1;
+        status.textContent = `Accepted ${done} of ${ids.length}…`;
+      } catch (e) {
+        status.textContent = `Stopped at reading ${id}: ${e.message}. ${done} accepted.`;
+        return;
+      }
+    }
+    toast(`${done} reading(s) accepted.`);
+    await reload();
+  };
+  return h("div", { class: "actions", id: "accept-bar" },
+    h("button", { class: "btn", type: "button", id: "select-clean", onclick: selectAll }, "Select every clean reading"),
+    h("button", { class: "btn btn-main", type: "button", id: "accept-selected", onclick: accept }, "Accept the selected"), status);
 }
 
 export async function renderLog(el, _arg, seq) {
@@ -131,7 +169,8 @@ export async function renderLog(el, _arg, seq) {
     try {
       const readings = await listing(`/readings/listing?${q}`, () => routeIsCurrent(seq));
       if (!readings || !routeIsCurrent(seq)) return;
-      clear(out, summary(readings), readings.length ? table(readings) : h("p", { class: "panel" }, "No readings for these filters."));
+      clear(out, summary(readings), readings.length ? [acceptBar(out, load), table(readings)] : h("p", { class: "panel" }, "No readings for these filters."));
+      if (state.scrollY) { window.scrollTo(0, state.scrollY); state.scrollY = 0; } // back where the supervisor was
     } catch (e) {
       clear(out, h("p", { class: "error", role: "alert" }, e instanceof NetworkError ? "Offline: the day's log needs the network." : e.message));
     }
@@ -144,7 +183,7 @@ export async function renderLog(el, _arg, seq) {
     h("div", { class: "field" }, h("button", { class: "btn", type: "submit" }, "Show")));
   for (const c of [date, site, flag]) c.addEventListener("change", load);
   clear(el, h("h1", { tabindex: "-1" }, "Day log"), form, h("div", { class: "actions" }, csv,
-    h("span", { class: "muted" }, "The commissioning record of the date and site chosen, one row per reading.")), out);
+    h("span", { class: "muted" }, "The commissioning record for the filters above (date, site, technician, finding), one row per reading.")), out);
   await load();
 }
 
@@ -156,14 +195,20 @@ export function reviewForm(reading, done) {
   const form = h("form", { class: "panel", id: "review-form", novalidate: true },
     h("h2", {}, "Review"),
     h("fieldset", { class: "choice-row" }, h("legend", {}, "Decision"),
-      choices.map(([v, label], i) => h("label", {}, h("input", { type: "radio", name: "decision", value: v, checked: i === 0 || null }), label))),
+      choices.map(([v, label]) => h("label", {}, h("input", { type: "radio", name: "decision", value: v }), label))),
     h("div", { class: "field" }, h("label", { for: "review-comment" }, "Comment"), comment,
       h("p", { class: "hint", id: "review-hint" }, "Needed for a retake or a rejection; the technician sees it.")),
     err, h("div", { class: "actions" }, h("button", { class: "btn btn-main", type: "submit", id: "review-submit" }, "Record review")));
   form.addEventListener("submit", async (ev) => {
     ev.preventDefault();
     err.textContent = "";
-    const decision = form.querySelector("input[name=decision]:checked").value;
+    const picked = form.querySelector("input[name=decision]:checked");
+    if (!picked) { // nothing is preselected: the supervisor decides
+      err.textContent = "Choose a decision: accept, ask for a retake, or reject.";
+      form.querySelector("input[name=decision]").focus();
+      return;
+    }
+    const decision = picked.value;
     try {
       await api("POST", `/readings/${reading.id}/review`, { decision, comment: comment.value.trim() });
       toast(`Review recorded: ${reviewWord(decision)}.`);

@@ -12,7 +12,7 @@ import { provisionalBlock, resultBlocks, reviewWord, SAFETY_NOTE } from "./resul
 import { go, routeIsCurrent } from "./router.js";
 import { askForBackgroundSync, sendReading, sync } from "./sending.js";
 import { ctx, setReachable, toast } from "./shell.js";
-import { historyBlock, inputsBlock, reviewForm } from "./supervisor.js";
+import { historyBlock, inputsBlock, reviewForm, state as logState } from "./supervisor.js";
 
 const SITE_KEY = "slipwise.site";
 
@@ -514,6 +514,17 @@ export async function renderReadingView(el, idText, seq) {
     retakeAsked ? h("p", {}, h("button", { class: "btn btn-main", type: "button", id: "take-again-asked", onclick: retake },
       "Take the reading again")) : null,
   ];
+  // opened from the day log: previous / next in the log's order, and back to the same place in it
+  const at = logState.order.indexOf(reading.id);
+  if (ctx.user && ctx.user.role === "supervisor" && at >= 0) {
+    const step = (to) => () => { logState.opened = to; go(`#/reading/${to}`); };
+    const prev = logState.order[at - 1], next = logState.order[at + 1];
+    head.push(h("nav", { class: "actions log-steps", "aria-label": "Day log" },
+      h("a", { class: "btn", href: "#/log", id: "back-to-log" }, "Back to the day log"),
+      h("button", { class: "btn", type: "button", id: "prev-reading", disabled: prev == null || null, onclick: prev != null ? step(prev) : null }, "Previous"),
+      h("span", { class: "muted" }, `${at + 1} of ${logState.order.length}`),
+      h("button", { class: "btn", type: "button", id: "next-reading", disabled: next == null || null, onclick: next != null ? step(next) : null }, "Next")));
+  }
   if (ctx.pendingStart) {
     ctx.resultShownMs = performance.now() - ctx.pendingStart;
     ctx.pendingStart = null;
@@ -529,4 +540,5 @@ export async function renderReadingView(el, idText, seq) {
   clear(el, head, h("div", { class: "two-col" },
     h("div", {}, resultBlocks(reading.result, { serviceFactor: sf, onRetake: retake })),
     h("div", {}, picture, extra, h("p", { class: "panel muted", id: "safety" }, SAFETY_NOTE))));
+  window.scrollTo(0, 0); // a reading opens at its top, wherever the log was scrolled
 }

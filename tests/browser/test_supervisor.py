@@ -98,3 +98,56 @@ def test_supervisor_review_and_csv_desktop(new_context, service):
     assert item.locator("[data-review]").get_attribute("data-review") == "retake"
     assert "shaft end" in item.text_content()
     shot(tpage, "tech-04-my-day")
+
+
+def test_desk_review_keeps_the_place_steps_and_accepts_a_run(new_context, service):
+    """Issue 12, item 4: rows marked by verdict; a reading opens at its top with previous/next and a way back
+    to the same place; nothing preselected in the review; a run of clean readings accepted at once."""
+    site = "Eastmoor sewage lift"
+    motors = [service.motor(f"EL-{n} lift pump", site=site) for n in (1, 2)]
+    ids = []
+    for i in range(14):
+        status, r = service.call("POST", "/api/v1/readings", {
+            "client_id": str(uuid.uuid4()), "motor_id": motors[i % 2]["id"], "frequency_hz": 50, "speed_rpm": 1478,
+            "current_l1_a": 20, "current_l2_a": 20.2, "current_l3_a": 19.9 if i != 5 else 15.0,
+            "voltage_l12_v": 400, "voltage_l23_v": 401, "voltage_l31_v": 399}, token=service.tech_token)
+        assert status == 201, r
+        ids.append(r["id"])
+    verdicts = {rid: service.call("GET", f"/api/v1/readings/{rid}")[1]["result"]["verdict"] for rid in ids}
+    assert verdicts[ids[5]] != "sound" and sum(v == "sound" for v in verdicts.values()) >= 10
+    page = new_context(DESKTOP).new_page()
+    sign_in(page, "sam")
+    page.click("#tabs a[data-screen=log]")
+    page.wait_for_selector("#filters")
+    page.select_option("#flt-site", site)
+    wait_until(page, f"document.querySelectorAll('#log-table tbody tr').length === {len(ids)}")
+    marked = dict(page.eval_on_selector_all("#log-table tbody tr", "rows => rows.map(r => [r.dataset.id, r.dataset.verdict])"))
+    assert {int(k): v for k, v in marked.items()} == verdicts
+    shot(page, "sup-03-day-log-verdicts")
+    # open a row far down: the reading opens at its top, with previous/next
+    page.evaluate("window.scrollTo(0, document.body.scrollHeight)")
+    far = ids[12]
+    page.click(f"#log-table tbody tr[data-id='{far}'] td:nth-child(3)")
+    page.wait_for_selector("#review-form")
+    assert page.evaluate("window.scrollY") == 0
+    assert page.locator("#review-form input[name=decision]:checked").count() == 0  # nothing preselected
+    page.click("#review-submit")
+    assert "Choose a decision" in page.text_content("#review-error")
+    page.click("#next-reading")
+    wait_until(page, f"location.hash === '#/reading/{ids[13]}'")
+    page.click("#prev-reading")
+    wait_until(page, f"location.hash === '#/reading/{far}'")
+    page.click("#back-to-log")
+    wait_until(page, f"document.querySelectorAll('#log-table tbody tr').length === {len(ids)}")
+    assert page.locator(f"#log-table tbody tr[data-id='{far}'].last-opened").count() == 1
+    assert page.evaluate("window.scrollY") > 0  # back at the place it was opened from
+    # accept every clean reading at once: each gets its own review; the one that is not sound is left alone
+    page.on("dialog", lambda d: d.accept())
+    page.click("#select-clean")
+    picked = page.locator("#log-table input.pick:checked").count()
+    assert picked == sum(v == "sound" for v in verdicts.values())
+    page.click("#accept-selected")
+    wait_until(page, "document.querySelectorAll('#log-table input.pick').length === 0", 30)
+    reviewed = {rid: service.call("GET", f"/api/v1/readings/{rid}")[1]["review"] for rid in ids}
+    assert all((reviewed[r] or {}).get("decision") == "accepted" for r in ids if verdicts[r] == "sound")
+    assert all(reviewed[r] is None for r in ids if verdicts[r] != "sound")
