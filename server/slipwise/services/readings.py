@@ -89,6 +89,25 @@ def picture_record(db: Database, reading_id: int) -> tuple[dict, dict]:
                     "result": json.loads(row["result"])}
 
 
+@dataclass(frozen=True)
+class CertificateRecord:
+    """What a reading's certificate prints: the reading with every review (full names, fingerprints), the
+    nameplate revision it used (``nameplate``), and the engine record its picture is drawn from."""
+
+    reading: ReadingRecord
+    nameplate: RowMapping
+    engine_record: dict
+
+
+def certificate_record(db: Database, reading_id: int) -> CertificateRecord:
+    """Everything one reading's certificate needs, read in one transaction."""
+    with db.read() as conn:
+        reading = _record(conn, reading_id)
+        plate = store.nameplate_row(conn, reading_id)
+    record = engine_record(plate, plate["tag"], json.loads(plate["inputs"]), plate["taken_at"])
+    return CertificateRecord(reading, plate, record)
+
+
 def interpret_reading(db: Database, inputs: Mapping[str, Any], taken_at: str | None, *,
                       motor_id: int | None = None, nameplate: Mapping[str, Any] | None = None,
                       tag: str = "(untagged)", thresholds: Any = None) -> dict:

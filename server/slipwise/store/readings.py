@@ -47,6 +47,7 @@ def _reading_select(with_nameplate: bool = False, reading_id=None):
     cols = [readings.c.id, readings.c.client_id, readings.c.motor_id, readings.c.motor_revision_id,
             motor_revisions.c.revision.label("motor_revision"), sites.c.name.label("site"), motors.c.tag,
             _tech.c.username.label("technician"), _tech.c.full_name.label("technician_name"),
+            _tech.c.role.label("technician_role"),
             readings.c.taken_at, readings.c.received_at, readings.c.engine_version, readings.c.supersedes_id,
             _superseding.c.id.label("superseded_by"), _review.c.decision, _review.c.comment,
             _review.c.reviewed_at, _reviewer.c.username.label("reviewer"),
