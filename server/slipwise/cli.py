@@ -1,10 +1,10 @@
 """``slipwise``: the command line. Parses options, calls the services and the web app, prints.
 
 Subcommands: ``serve``, ``demo``, ``user add``, ``user list``, ``token create``,
-``db upgrade``, ``db backup`` and ``analyze`` (in ``slipwise.cli_analyze``).
+``db upgrade``, ``db backup``, ``verify`` and ``analyze`` (in ``slipwise.cli_analyze``).
 
-Exit status: 0 success, 1 refused (a user that exists, a bad password...),
-2 usage or configuration error.
+Exit status: 0 success, 1 refused (a user that exists, a bad password...; for
+``verify``: the record's chain is broken), 2 usage or configuration error.
 """
 
 from __future__ import annotations
@@ -84,6 +84,25 @@ def cmd_db_backup(args) -> int:
         db.dispose()
     print(f"database {db.describe()}: copied to {dest} ({dest.stat().st_size} bytes)")
     return 0
+
+
+# --- verify ----------------------------------------------------------------------
+def cmd_verify(args) -> int:
+    from slipwise.services.evidence import verify_record
+    db = _open_database(args)
+    try:
+        db.check_current()  # reads only: an older database has no chain yet (slipwise db upgrade makes it)
+        report = verify_record(db)
+    finally:
+        db.dispose()
+    entries = f"{report.readings} readings and {report.reviews} reviews"
+    if report.intact:
+        head = f"; last fingerprint {report.head}" if report.head else ""
+        print(f"database {db.describe()}: record intact: {entries} in one chain{head}")
+        return 0
+    print(f"database {db.describe()}: record NOT intact: {report.broken.describe()}", file=sys.stderr)
+    print(f"(checked up to the break: {entries}; entries after it were not checked)", file=sys.stderr)
+    return 1
 
 
 # --- user / token -------------------------------------------------------------
@@ -215,6 +234,11 @@ def build_parser() -> argparse.ArgumentParser:
     _common(bk)
     bk.add_argument("file", help="the copy to write (must not exist)")
     bk.set_defaults(func=cmd_db_backup)
+
+    ver = sub.add_parser("verify", help="walk the record's chain of fingerprints: exit 0 when every stored "
+                                        "reading and review is as it was stored, 1 naming the first that is not")
+    _common(ver)
+    ver.set_defaults(func=cmd_verify)
 
     add_analyze_parser(sub)
     return parser

@@ -15,6 +15,7 @@ from __future__ import annotations
 import hashlib
 import json
 from collections.abc import Mapping, Sequence
+from datetime import datetime, timezone
 
 import numpy as np
 
@@ -81,3 +82,34 @@ def verify_chain(entries: Sequence[Mapping]) -> int | None:
             return i
         previous = entry["fingerprint"]
     return None
+
+
+# --- the content of a stored entry --------------------------------------------------------------------
+# What a fingerprint covers is part of the record's format: the migration that fingerprinted the rows
+# stored before fingerprints existed (store/alembic/versions/0003) and every later write use these two
+# functions. Changing them would break every stored chain: add a new kind of entry instead.
+READING_CONTENT = ("client_id", "motor_id", "motor_revision_id", "technician_id", "inputs", "result",
+                   "engine_version", "content_hash", "taken_at", "taken_date", "taken_at_utc", "received_at",
+                   "supersedes_id", "chain_position")
+REVIEW_CONTENT = ("reading_id", "decision", "comment", "reviewer_id", "reviewed_at", "chain_position")
+
+
+def _instant(value):
+    """A stored timestamp as UTC ISO 8601 text to the microsecond (what both databases keep)."""
+    if isinstance(value, datetime):
+        if value.tzinfo is None:
+            raise ValueError("naive datetime in fingerprinted content")
+        return value.astimezone(timezone.utc).isoformat(timespec="microseconds")
+    return value
+
+
+def reading_content(row: Mapping) -> dict:
+    """The fingerprinted content of a stored reading: its columns as stored (``inputs`` and ``result``
+    as their JSON text, byte for byte), timestamps in UTC; the row id is not part of it (it is given by
+    the database on insert), its place in the chain is."""
+    return {"entry": "reading", **{name: _instant(row[name]) for name in READING_CONTENT}}
+
+
+def review_content(row: Mapping) -> dict:
+    """The fingerprinted content of a stored review (an acceptance is the sign-off)."""
+    return {"entry": "review", **{name: _instant(row[name]) for name in REVIEW_CONTENT}}

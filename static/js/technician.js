@@ -525,6 +525,11 @@ export async function renderReadingView(el, idText, seq) {
       h("span", { class: "muted" }, `${at + 1} of ${logState.order.length}`),
       h("button", { class: "btn", type: "button", id: "next-reading", disabled: next == null || null, onclick: next != null ? step(next) : null }, "Next")));
   }
+  // the certificate: for supervisors and for the technician who took the reading (the server checks too)
+  if (ctx.user && (ctx.user.role === "supervisor" || ctx.user.username === reading.technician)) {
+    head.push(h("p", {}, h("a", { id: "certificate-link", href: `/api/v1/readings/${reading.id}/certificate.pdf`, target: "_blank", rel: "noopener" },
+      rev && rev.decision === "accepted" ? "Open the certificate (PDF)" : "Open the draft certificate (PDF, not signed off)")));
+  }
   if (ctx.pendingStart) {
     ctx.resultShownMs = performance.now() - ctx.pendingStart;
     ctx.pendingStart = null;

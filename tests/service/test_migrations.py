@@ -39,8 +39,9 @@ def test_from_empty_matches_head_schema(database):
 
 
 def test_upgrade_from_previous_schema_keeps_rows(database, tmp_path, static_dir):
+    # release 1's schema (no flag index yet): the steps since fill the flag index and fingerprint the rows
     db = _db(database)
-    assert db.upgrade(target=migrations.HEAD - 1) == (0, migrations.HEAD - 1)
+    assert db.upgrade(target=1) == (0, 1)
     now = datetime(2025, 3, 14, 8, 0, tzinfo=timezone.utc)
     result = {"slip_pct": 1.7, "flags": ["underloaded", "voltage_unbalance"], "findings": []}
     with db.write() as conn:
@@ -71,7 +72,12 @@ def test_upgrade_from_previous_schema_keeps_rows(database, tmp_path, static_dir)
     with db.read() as conn:
         assert conn.exec_driver_sql("SELECT COUNT(*) FROM readings").scalar_one() == 2
         flags = conn.exec_driver_sql("SELECT reading_id, flag FROM reading_flags ORDER BY flag").all()
+        chained = conn.exec_driver_sql("SELECT id, chain_position, fingerprint FROM readings ORDER BY id").all()
+        head = conn.exec_driver_sql("SELECT length, head FROM record_chain").all()
     assert [tuple(r) for r in flags] == [(1, "underloaded"), (1, "voltage_unbalance")]
+    assert [(r[0], r[1]) for r in chained] == [(1, 1), (2, 2)]  # same received_at: then by id
+    assert all(len(r[2]) == 64 for r in chained) and chained[0][2] != chained[1][2]
+    assert [tuple(h) for h in head] == [(2, chained[1][2])]
     db.dispose()
 
 

@@ -25,36 +25,41 @@ ADD_COLUMN = '''    sqlite = op.get_bind().dialect.name == "sqlite"
 def test_next_revision_is_numbered_and_upgrades_a_release_2_database(database, tmp_path):
     scripts = tmp_path / "scripts"
     shutil.copytree(migrations.SCRIPT_LOCATION, scripts, ignore=shutil.ignore_patterns("__pycache__"))
+    head, nxt = migrations.revision_id(migrations.HEAD), migrations.revision_id(migrations.HEAD + 1)
     path = write_revision("test column on readings", str(scripts))
-    assert path.endswith("0003_test_column_on_readings.py")
+    assert path.endswith(f"{nxt}_test_column_on_readings.py")
     text = open(path).read()
-    assert 'revision = "0003"' in text.replace("'", '"') and 'down_revision = "0002"' in text.replace("'", '"')
+    assert f'revision = "{nxt}"' in text.replace("'", '"') and f'down_revision = "{head}"' in text.replace("'", '"')
     open(path, "w").write(text.replace("    pass\n", ADD_COLUMN, 1))
-    assert migrations.known_revisions(str(scripts)) == ("0002", "0003")
+    assert migrations.known_revisions(str(scripts)) == migrations.known_revisions() + (nxt,)
 
     release_2.build(database)
     before = release_2.snapshot(database)
     db = Database(database.url, schema=database.schema)
     with db.migration() as conn:
-        done = migrations.upgrade(conn, 3, schema=database.schema, location=str(scripts))
-    assert (done.before, done.after, done.stamped) == (2, 3, True)
+        done = migrations.upgrade(conn, int(nxt), schema=database.schema, location=str(scripts))
+    assert (done.before, done.after, done.stamped) == (2, int(nxt), True)
     with db.read() as conn:
-        assert migrations.status(conn) == migrations.Status(3, "0003")
+        assert migrations.status(conn) == migrations.Status(int(nxt), nxt)
     db.dispose()
     after = release_2.snapshot(database)
-    assert after.pop("alembic_version") == [("0003",)]
-    assert after.pop("schema_version") == [(3,)]
+    assert after.pop("alembic_version") == [(nxt,)]
+    assert after.pop("schema_version") == [(int(nxt),)]
     before.pop("schema_version")
-    # every reading kept, with the new column empty at the end; every other table untouched
-    assert [r[:-1] for r in after.pop("readings")] == before.pop("readings")
+    after.pop("record_chain", None)  # revision 0003's chain head
+    # every reading and review kept, the columns added since (0003's fingerprint, the test's column) at the
+    # end; every other table untouched
+    for name in ("readings", "reviews"):
+        width = len(before[name][0])
+        assert [r[:width] for r in after.pop(name)] == before.pop(name), name
     assert after == before
-    # and this release's own scripts (head 0002) refuse the database now
+    # and this release's own scripts refuse the database now
     db = Database(database.url, schema=database.schema)
     try:
         db.upgrade()
     except migrations.SchemaTooNewError as e:
         assert "newer than this slipwise" in str(e)
     else:
-        raise AssertionError("a database at revision 0003 must be refused by scripts whose head is 0002")
+        raise AssertionError(f"a database at revision {nxt} must be refused by scripts whose head is {head}")
     finally:
         db.dispose()

@@ -27,6 +27,8 @@ ACCESS = {
     ("GET", "/api/v1/readings/<id:reading_id>/torque-speed.json"): "technician",
     ("GET", "/api/v1/readings/<id:reading_id>"): "technician",
     ("GET", "/api/v1/readings/<id:reading_id>/torque-speed.svg"): "technician",
+    # (the technician here took the reading; another technician gets 403: test_certificate.py)
+    ("GET", "/api/v1/readings/<id:reading_id>/certificate.pdf"): "technician",
     ("POST", "/api/v1/readings/<id:reading_id>/review"): "supervisor",
     ("GET", "/api/v1/export.csv"): "supervisor",
     ("POST", "/api/v1/interpret"): "technician",

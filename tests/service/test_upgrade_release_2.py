@@ -33,13 +33,36 @@ def test_release_2_database_upgrades_with_every_row_kept(database, tmp_path, sta
 
     r = run_cli(["db", "upgrade"], _env(database, tmp_path))
     assert r.returncode == 0, r.stderr
-    assert f"schema version {migrations.HEAD}" in r.stdout and "Alembic revision 0002" in r.stdout, r.stdout
+    head = migrations.revision_id(migrations.HEAD)
+    assert f"from version 2 to {migrations.HEAD}" in r.stdout and f"Alembic revision {head}" in r.stdout, r.stdout
 
     after = release_2.snapshot(database)
-    assert after.pop("alembic_version") == [("0002",)]
-    assert after == before  # every row of every table, byte for byte as the driver reads it
-    counts = {name: len(rows) for name, rows in after.items()}
+    assert after.pop("alembic_version") == [(head,)]
+    assert after.pop("schema_version") == [(migrations.HEAD,)]
+    # revision 0003: readings and reviews gain fingerprint and chain_position at the end of their rows, the
+    # chain head its own table; every old column of every row, byte for byte as the driver reads it
+    chain_head = after.pop("record_chain")
+    changed = {name: after.pop(name) for name in ("readings", "reviews")}
+    saved = {**before}
+    assert saved.pop("schema_version") == [(2,)]
+    for name, rows in changed.items():
+        width = len(saved[name][0])
+        assert [r[:width] for r in rows] == saved.pop(name), name
+        assert all(len(r[width]) == 64 and r[width + 1] >= 1 for r in rows), name
+    assert after == saved
+    positions = sorted(r[-1] for rows in changed.values() for r in rows)
+    assert positions == list(range(1, len(positions) + 1))  # one chain over readings and reviews
+    assert chain_head == [(1, len(positions), max((r for rows in changed.values() for r in rows),
+                                                   key=lambda r: r[-1])[-2])]
+    counts = {name: len(rows) for name, rows in {**after, **changed}.items()}
     print("rows compared:", json.dumps(counts, sort_keys=True))
+    upgraded = release_2.snapshot(database)
+
+    # the fingerprints the migration gave release 2's rows verify, in a separate process
+    ok = run_cli(["verify"], _env(database, tmp_path))
+    assert ok.returncode == 0, ok.stdout + ok.stderr
+    assert (f"{len(changed['readings'])} readings and {len(changed['reviews'])} reviews in one chain"
+            in ok.stdout), ok.stdout
 
     db = Database(database.url, schema=database.schema)
     with db.read() as conn:
@@ -57,7 +80,7 @@ def test_release_2_database_upgrades_with_every_row_kept(database, tmp_path, sta
     # a second run finds nothing to do and changes nothing
     again = run_cli(["db", "upgrade"], _env(database, tmp_path))
     assert again.returncode == 0 and "already current" in again.stdout, again.stdout + again.stderr
-    assert release_2.snapshot(database) == {**before, "alembic_version": [("0002",)]}
+    assert release_2.snapshot(database) == upgraded
 
     # release 2's passwords still log in over the API, and the records read as before
     app = make_app(database, tmp_path, static_dir)

@@ -73,12 +73,16 @@ Result = create_model(
 
 
 # --------------------------------------------------------------------------- readings and reviews
+FINGERPRINT_HELP = ("SHA-256 (64 hex digits) of this entry's stored content and the previous entry's fingerprint: "
+                    "the record's chain, checked by `slipwise verify`; null only for an entry written outside slipwise")
+
 class Review(_Response):
     decision: Literal[REVIEW_DECISIONS]  # type: ignore[valid-type]
     comment: str
     reviewer: str
     reviewer_name: Optional[str] = Field(None, description="the reviewer's full name")
     reviewed_at: datetime
+    fingerprint: Optional[str] = Field(description=FINGERPRINT_HELP)
 
 
 ReadingInputs = create_model(
@@ -102,6 +106,7 @@ class Reading(_Response):
     engine_version: str
     supersedes: Optional[int]
     superseded_by: Optional[int]
+    fingerprint: Optional[str] = Field(description=FINGERPRINT_HELP)
     review: Optional[Review] = Field(description="the latest review; null before any")
     reviews: list[Review] = Field(None, description="every review, oldest first (GET /readings/{id} only)")
     inputs: ReadingInputs
@@ -165,6 +170,7 @@ class ReviewCreated(_Response):
     comment: str
     reviewer: str
     reviewed_at: datetime
+    fingerprint: Optional[str] = Field(description=FINGERPRINT_HELP)
     reading: Reading
 
 

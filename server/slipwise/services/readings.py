@@ -17,6 +17,7 @@ from typing import Any, Iterator, Mapping
 
 from sqlalchemy import RowMapping
 
+from slipwise import fingerprint as chain
 from slipwise.contract import DECISIONS_NEEDING_COMMENT
 from slipwise.store import audit
 from slipwise.store import motors as store_motors
@@ -48,6 +49,7 @@ class Review:
     comment: str
     reviewer: str
     reviewed_at: datetime
+    fingerprint: str
     reading: ReadingRecord
 
 
@@ -124,6 +126,25 @@ def picture_record(db: Database, reading_id: int) -> tuple[dict, dict]:
                     "result": json.loads(row["result"])}
 
 
+@dataclass(frozen=True)
+class CertificateRecord:
+    """What a reading's certificate prints: the reading with every review (full names, fingerprints), the
+    nameplate revision it used (``nameplate``), and the engine record its picture is drawn from."""
+
+    reading: ReadingRecord
+    nameplate: RowMapping
+    engine_record: dict
+
+
+def certificate_record(db: Database, reading_id: int) -> CertificateRecord:
+    """Everything one reading's certificate needs, read in one transaction."""
+    with db.read() as conn:
+        reading = _record(conn, reading_id)
+        plate = store.nameplate_row(conn, reading_id)
+    record = engine_record(plate, plate["tag"], json.loads(plate["inputs"]), plate["taken_at"])
+    return CertificateRecord(reading, plate, record)
+
+
 def interpret_reading(db: Database, inputs: Mapping[str, Any], taken_at: str | None, *,
                       motor_id: int | None = None, nameplate: Mapping[str, Any] | None = None,
                       tag: str = "(untagged)", thresholds: Any = None) -> dict:
@@ -140,6 +161,19 @@ def interpret_reading(db: Database, inputs: Mapping[str, Any], taken_at: str | N
     else:
         record = engine_record(nameplate or {}, tag, inputs, taken_at)
     return interpret(record, thresholds)
+
+
+def _chained(conn, values: dict, content) -> dict:
+    """``values`` with their place in the record's chain and their fingerprint; the chain's head advanced.
+
+    Called inside the write transaction that inserts the entry: the head stays locked until it commits,
+    and a rollback leaves the chain as it was.
+    """
+    length, head = store.lock_chain_head(conn)
+    values = {**values, "chain_position": length + 1}
+    values["fingerprint"] = chain.fingerprint(content(values), head)
+    store.advance_chain_head(conn, length + 1, values["fingerprint"])
+    return values
 
 
 def _replay(conn, found, digest: str, client_id: str) -> ReadingRecord:
@@ -179,13 +213,14 @@ def submit_reading(db: Database, user: Mapping[str, Any], sub: Submission,
     stored_inputs["taken_at"] = sub.taken_at
     try:
         with db.write() as conn:  # one transaction: the reading, its result, its flags, its audit row
-            rid = store.insert_reading(conn, dict(
+            values = dict(
                 client_id=sub.client_id, motor_id=sub.motor_id, motor_revision_id=revision["id"],
                 technician_id=user["id"], inputs=to_json(stored_inputs), result=to_json(result),
                 engine_version=str(result.get("engine_version") or ""), content_hash=digest,
                 taken_at=sub.taken_at or now.isoformat(timespec="seconds"), taken_date=sub.taken_date,
-                taken_at_utc=sub.taken_at_utc, received_at=now, supersedes_id=sub.supersedes,
-            ), result.get("flags") or ())
+                taken_at_utc=sub.taken_at_utc, received_at=now, supersedes_id=sub.supersedes)
+            rid = store.insert_reading(conn, _chained(conn, values, chain.reading_content),
+                                       result.get("flags") or ())
             audit.record(conn, user, "reading.supersede" if sub.supersedes else "reading.submit", "reading", rid,
                          {"client_id": sub.client_id, "motor_id": sub.motor_id, "supersedes": sub.supersedes})
             return _record(conn, rid), True
@@ -208,8 +243,12 @@ def review_reading(db: Database, user: Mapping[str, Any], reading_id: int, decis
         if store.motor_of(conn, reading_id) is None:
             raise NotFoundError(f"no reading with id {reading_id}", "id")
         now = utcnow()
-        review_id = store.insert_review(conn, reading_id, decision, comment, user["id"], now)
+        values = dict(reading_id=reading_id, decision=decision, comment=comment, reviewer_id=user["id"],
+                      reviewed_at=now)
+        values = _chained(conn, values, chain.review_content)
+        review_id = store.insert_review(conn, values)
         audit.record(conn, user, "reading.review", "reading", reading_id,
                      {"review_id": review_id, "decision": decision})
     with db.read() as conn:
-        return Review(review_id, reading_id, decision, comment, user["username"], now, _record(conn, reading_id))
+        return Review(review_id, reading_id, decision, comment, user["username"], now, values["fingerprint"],
+                      _record(conn, reading_id))

@@ -39,7 +39,7 @@ BASELINE = legacy_steps.LAST  # release 2's schema, Alembic revision "0002"
 _ADVISORY_LOCK_KEY = 0x51195E  # any constant shared by all slipwise processes
 
 KNOWN_TABLES = ("users", "api_tokens", "sessions", "login_throttle", "sites", "motors",
-                "motor_revisions", "readings", "reviews", "audit_log", "reading_flags")
+                "motor_revisions", "readings", "reviews", "audit_log", "reading_flags", "record_chain")
 
 
 def revision_id(version: int) -> str:

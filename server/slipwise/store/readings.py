@@ -25,7 +25,7 @@ from sqlalchemy.exc import IntegrityError
 
 from .errors import DuplicateError
 from .motors import REVISION_FIELDS
-from .schema import motor_revisions, motors, reading_flags, readings, reviews, sites, users
+from .schema import motor_revisions, motors, reading_flags, readings, record_chain, reviews, sites, users
 
 
 def __getattr__(name: str):
@@ -51,10 +51,12 @@ def _reading_select(with_nameplate: bool = False, reading_id=None):
     cols = [readings.c.id, readings.c.client_id, readings.c.motor_id, readings.c.motor_revision_id,
             motor_revisions.c.revision.label("motor_revision"), sites.c.name.label("site"), motors.c.tag,
             _tech.c.username.label("technician"), _tech.c.full_name.label("technician_name"),
+            _tech.c.role.label("technician_role"),
             readings.c.taken_at, readings.c.received_at, readings.c.engine_version, readings.c.supersedes_id,
             _superseding.c.id.label("superseded_by"), _review.c.decision, _review.c.comment,
             _review.c.reviewed_at, _reviewer.c.username.label("reviewer"),
-            _reviewer.c.full_name.label("reviewer_name"), readings.c.inputs, readings.c.result]
+            _reviewer.c.full_name.label("reviewer_name"), _review.c.fingerprint.label("review_fingerprint"),
+            readings.c.fingerprint, readings.c.inputs, readings.c.result]
     if with_nameplate:
         cols += [motor_revisions.c[f] for f in REVISION_FIELDS]
     q = (select(*cols).select_from(readings)
@@ -99,10 +101,12 @@ def reading_row(conn: Connection, reading_id: int) -> RowMapping | None:
 
 
 def review_rows(conn: Connection, reading_id: int) -> list[RowMapping]:
-    """Every review of a reading, oldest first: decision, comment, reviewed_at, reviewer."""
+    """Every review of a reading, oldest first: id, decision, comment, reviewed_at, reviewer (username),
+    reviewer_name (full name), reviewer_role, fingerprint, chain_position."""
     return conn.execute(
-        select(reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at, users.c.username.label("reviewer"),
-               users.c.full_name.label("reviewer_name"))
+        select(reviews.c.id, reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at,
+               users.c.username.label("reviewer"), users.c.full_name.label("reviewer_name"),
+               users.c.role.label("reviewer_role"), reviews.c.fingerprint, reviews.c.chain_position)
         .join(users, users.c.id == reviews.c.reviewer_id)
         .where(reviews.c.reading_id == reading_id).order_by(reviews.c.id)).mappings().all()
 
@@ -146,12 +150,12 @@ class _JsonMember(ColumnElement):
 
 
 @compiles(_JsonMember, "sqlite")
-def _json_member_sqlite(element, compiler, **kw):
+def _stored_member_sqlite(element, compiler, **kw):
     return f"json_extract({compiler.process(element.column, **kw)}, '$.{element.key_name}')"
 
 
 @compiles(_JsonMember, "postgresql")
-def _json_member_postgresql(element, compiler, **kw):
+def _stored_member_postgresql(element, compiler, **kw):
     text = f"(CAST({compiler.process(element.column, **kw)} AS json) ->> '{element.key_name}')"
     return f"CAST({text} AS double precision)" if isinstance(element.type, Float) else text
 
@@ -238,9 +242,44 @@ def insert_reading(conn: Connection, values: Mapping[str, Any], flags: Iterable[
     return rid
 
 
-def insert_review(conn: Connection, reading_id: int, decision: str, comment: str, reviewer_id: int,
-                  reviewed_at: datetime) -> int:
-    """Append one review row; returns its id."""
-    return conn.execute(reviews.insert().values(reading_id=reading_id, decision=decision, comment=comment,
-                                                reviewer_id=reviewer_id, reviewed_at=reviewed_at)
-                        ).inserted_primary_key[0]
+def insert_review(conn: Connection, values: Mapping[str, Any]) -> int:
+    """Append one review row (``values``: the columns of ``reviews``); returns its id."""
+    return conn.execute(reviews.insert().values(**values)).inserted_primary_key[0]
+
+
+# --- the record's chain -------------------------------------------------------------
+def lock_chain_head(conn: Connection) -> tuple[int, str | None]:
+    """(length, last fingerprint) of the record's chain, locked until the caller's transaction ends.
+
+    PostgreSQL: ``SELECT ... FOR UPDATE`` on the one row, so a second writer waits here until the
+    first commits and then reads the head the first wrote. SQLite: write transactions begin with
+    ``BEGIN IMMEDIATE`` and hold the database's one write lock already (no FOR UPDATE in SQLite).
+    """
+    row = conn.execute(select(record_chain.c.length, record_chain.c.head)
+                       .where(record_chain.c.id == 1).with_for_update()).first()
+    if row is None:  # only a database whose migration was interrupted by hand could lack it
+        raise RuntimeError("the record_chain row is missing: run `slipwise db upgrade`")
+    return int(row.length), row.head
+
+
+def advance_chain_head(conn: Connection, length: int, head: str) -> None:
+    """Record the chain's new length and last fingerprint (after ``lock_chain_head`` in this transaction)."""
+    conn.execute(record_chain.update().where(record_chain.c.id == 1).values(length=length, head=head))
+
+
+def chain_head(conn: Connection) -> tuple[int, str | None] | None:
+    """(length, last fingerprint) as stored, without a lock; None when the row is missing."""
+    row = conn.execute(select(record_chain.c.length, record_chain.c.head).where(record_chain.c.id == 1)).first()
+    return None if row is None else (int(row.length), row.head)
+
+
+def iter_chain_readings(conn: Connection) -> Iterator[RowMapping]:
+    """Every reading row (all columns), by chain position (NULL positions first), streamed."""
+    q = select(readings).order_by(readings.c.chain_position.is_not(None), readings.c.chain_position, readings.c.id)
+    yield from conn.execution_options(stream_results=True, yield_per=2000).execute(q).mappings()
+
+
+def chain_reviews(conn: Connection) -> list[RowMapping]:
+    """Every review row (all columns), by chain position (NULL positions first)."""
+    return conn.execute(select(reviews).order_by(reviews.c.chain_position.is_not(None), reviews.c.chain_position,
+                                                 reviews.c.id)).mappings().all()

@@ -131,8 +131,13 @@ readings = Table(
     Column("taken_at_utc", UTCDateTime, nullable=False),
     Column("received_at", UTCDateTime, nullable=False),
     Column("supersedes_id", Integer, ForeignKey("readings.id"), unique=True),
+    # the record's chain (slipwise.fingerprint): SHA-256 of this row's content and the previous entry's
+    # fingerprint; chain_position numbers readings and reviews together in the order they were stored
+    Column("fingerprint", String(64)),
+    Column("chain_position", Integer),
     Index("ix_readings_taken_date", "taken_date"),
     Index("ix_readings_motor_id", "motor_id"),
+    Index("ux_readings_chain_position", "chain_position", unique=True),
 )
 
 reading_flags = Table(
@@ -150,8 +155,22 @@ reviews = Table(
     Column("comment", Text, nullable=False, default=""),
     Column("reviewer_id", Integer, ForeignKey("users.id"), nullable=False),
     Column("reviewed_at", UTCDateTime, nullable=False),
+    Column("fingerprint", String(64)),
+    Column("chain_position", Integer),
     CheckConstraint("decision IN ('accepted', 'retake', 'rejected')", name="ck_reviews_decision"),
     Index("ix_reviews_reading_id", "reading_id"),
+    Index("ux_reviews_chain_position", "chain_position", unique=True),
+)
+
+# The head of the record's chain: one row (id 1), the number of entries and the last fingerprint.
+# A writer locks it (SELECT ... FOR UPDATE on PostgreSQL; SQLite's write lock already serialises) before
+# it appends a reading or a review, so two servers never chain two entries to the same predecessor.
+record_chain = Table(
+    "record_chain", metadata,
+    Column("id", Integer, primary_key=True),
+    Column("length", Integer, nullable=False),
+    Column("head", String(64)),
+    CheckConstraint("id = 1", name="ck_record_chain_one_row"),
 )
 
 audit_log = Table(

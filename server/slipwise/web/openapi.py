@@ -106,6 +106,7 @@ PUBLIC, SIGNED_IN = "public", "signed in"           # who may call: nobody signe
 TECH, SUP = "technician, supervisor", "supervisor"  # or these roles
 ID = {name: _path_id(name) for name in ("motor_id", "reading_id")}
 SVG = {"description": "SVG", "content": {"image/svg+xml": {"schema": {"type": "string"}}}}
+PDF = {"description": "PDF (A4)", "content": {"application/pdf": {"schema": {"type": "string", "format": "binary"}}}}
 CSV = {"description": "UTF-8 CSV with a header row", "content": {"text/csv": {"schema": {"type": "string"}}}}
 THIS = {"description": "OpenAPI 3 document", "content": {"application/json": {"schema": {"type": "object"}}}}
 READINGS_Q = [DATE_Q, SITE_Q, _q("flag", "only readings with this flag", {"type": "string", "enum": list(FLAG_CODES)}),
@@ -160,6 +161,11 @@ ROUTES: list[tuple] = [
     ("/readings/{reading_id}/torque-speed.json", "get", TECH, "the torque-speed picture's curves and points as "
      "numbers (rpm, N·m) for a client to draw", [ID["reading_id"]], None,
      {"200": ("curves and points", "TorqueSpeedCurve")}, "400 401 404"),
+    ("/readings/{reading_id}/certificate.pdf", "get", TECH, "the reading's commissioning certificate (supervisors, "
+     "and the technician who took it): nameplate, instruments, every test and the running reading with value, "
+     "criterion, source and state, findings, picture, people by full name, review history, QR code of the "
+     "reading's page, fingerprints; marked DRAFT until a supervisor accepts it (the sign-off)",
+     [ID["reading_id"]], None, {"200": PDF}, "400 401 403 404"),
     ("/readings/{reading_id}/review", "post", SUP, "review a reading: accepted, retake or rejected",
      [ID["reading_id"], CSRF], "ReviewInput", {"201": ("the review", "ReviewCreated")}, "400 401 403 404 413 415"),
     ("/export.csv", "get", SUP, "the commissioning record as CSV, one row per reading", EXPORT_Q, None,

@@ -24,6 +24,42 @@ def picture_title(summary: Mapping[str, Any], result: Mapping[str, Any], reading
             f"points from the stored result of engine {stored}{drawn_by}")
 
 
+def _draw(fig, curve: Mapping[str, Any], title: str) -> None:
+    """The torque-speed axes on ``fig``: the motor's curves, the load, the operating and breakdown points."""
+    ax = fig.add_subplot(1, 1, 1)
+    speed = curve["speed_rpm"]
+    ax.plot(speed, curve["torque_rated_v_nm"], color="#7a7a7a", linestyle="--", linewidth=1.4,
+            label="motor at rated voltage")
+    ax.plot(speed, curve["torque_measured_v_nm"], color="#1f5fa8", linewidth=2.0,
+            label="motor at measured voltage")
+    ax.plot(speed, curve["load_torque_nm"], color="#b8641c", linewidth=1.6, label="driven load")
+    if curve.get("breakdown_speed_rpm") is not None and curve.get("breakdown_torque_nm") is not None:
+        ax.plot([curve["breakdown_speed_rpm"]], [curve["breakdown_torque_nm"]], marker="^", markersize=9,
+                color="#a11d2b", linestyle="none",
+                label=f"breakdown {curve['breakdown_torque_nm']:.0f} N·m at {curve['breakdown_speed_rpm']:.0f} rpm")
+    if curve.get("operating_speed_rpm") is not None and curve.get("operating_torque_nm") is not None:
+        ax.plot([curve["operating_speed_rpm"]], [curve["operating_torque_nm"]], marker="o", markersize=9,
+                color="#1b7a3a", linestyle="none",
+                label=f"operating point {curve['operating_torque_nm']:.0f} N·m at "
+                      f"{curve['operating_speed_rpm']:.0f} rpm")
+    else:
+        ax.text(0.02, 0.04, "no operating point: the load torque exceeds the motor torque",
+                transform=ax.transAxes, fontsize=9, color="#a11d2b")
+    if curve.get("rated_torque_nm") is not None:
+        ax.axhline(curve["rated_torque_nm"], color="#7a7a7a", linewidth=0.8, linestyle=":",
+                   label=f"rated torque {curve['rated_torque_nm']:.0f} N·m")
+    if curve.get("sync_speed_rpm") is not None:
+        ax.axvline(curve["sync_speed_rpm"], color="#7a7a7a", linewidth=0.8, linestyle=":")
+    ax.set_xlabel("shaft speed [rpm]")
+    ax.set_ylabel("torque [N·m]")
+    ax.set_title(title, fontsize=10)
+    ax.set_xlim(left=0)
+    ax.set_ylim(bottom=0)
+    ax.grid(True, linewidth=0.4, alpha=0.6)
+    ax.legend(loc="upper left", fontsize=8, frameon=False)
+    fig.tight_layout()
+
+
 def render_torque_speed_svg(curve: Mapping[str, Any], title: str) -> bytes:
     """SVG of the curves returned by ``slipwise.engine.torque_speed_curve``.
 
@@ -41,41 +77,24 @@ def render_torque_speed_svg(curve: Mapping[str, Any], title: str) -> bytes:
 
         matplotlib.rcParams["svg.hashsalt"] = "slipwise"
         fig = Figure(figsize=(7.5, 4.6), dpi=100)
-        ax = fig.add_subplot(1, 1, 1)
-        speed = curve["speed_rpm"]
-        ax.plot(speed, curve["torque_rated_v_nm"], color="#7a7a7a", linestyle="--", linewidth=1.4,
-                label="motor at rated voltage")
-        ax.plot(speed, curve["torque_measured_v_nm"], color="#1f5fa8", linewidth=2.0,
-                label="motor at measured voltage")
-        ax.plot(speed, curve["load_torque_nm"], color="#b8641c", linewidth=1.6, label="driven load")
-        if curve.get("breakdown_speed_rpm") is not None and curve.get("breakdown_torque_nm") is not None:
-            ax.plot([curve["breakdown_speed_rpm"]], [curve["breakdown_torque_nm"]], marker="^", markersize=9,
-                    color="#a11d2b", linestyle="none",
-                    label=f"breakdown {curve['breakdown_torque_nm']:.0f} N·m at {curve['breakdown_speed_rpm']:.0f} rpm")
-        if curve.get("operating_speed_rpm") is not None and curve.get("operating_torque_nm") is not None:
-            ax.plot([curve["operating_speed_rpm"]], [curve["operating_torque_nm"]], marker="o", markersize=9,
-                    color="#1b7a3a", linestyle="none",
-                    label=f"operating point {curve['operating_torque_nm']:.0f} N·m at "
-                          f"{curve['operating_speed_rpm']:.0f} rpm")
-        else:
-            ax.text(0.02, 0.04, "no operating point: the load torque exceeds the motor torque",
-                    transform=ax.transAxes, fontsize=9, color="#a11d2b")
-        if curve.get("rated_torque_nm") is not None:
-            ax.axhline(curve["rated_torque_nm"], color="#7a7a7a", linewidth=0.8, linestyle=":",
-                       label=f"rated torque {curve['rated_torque_nm']:.0f} N·m")
-        if curve.get("sync_speed_rpm") is not None:
-            ax.axvline(curve["sync_speed_rpm"], color="#7a7a7a", linewidth=0.8, linestyle=":")
-        ax.set_xlabel("shaft speed [rpm]")
-        ax.set_ylabel("torque [N·m]")
-        ax.set_title(title, fontsize=10)
-        ax.set_xlim(left=0)
-        ax.set_ylim(bottom=0)
-        ax.grid(True, linewidth=0.4, alpha=0.6)
-        ax.legend(loc="upper left", fontsize=8, frameon=False)
-        fig.tight_layout()
+        _draw(fig, curve, title)
         out = io.BytesIO()
         fig.savefig(out, format="svg", metadata={"Date": None})
     return without_inline_style(out.getvalue())
+
+
+def render_torque_speed_png(curve: Mapping[str, Any], title: str, dpi: int = 200) -> bytes:
+    """The same picture as a PNG, for print (the certificate); no date or software stamp in it."""
+    with _lock:
+        import matplotlib
+        matplotlib.use("Agg", force=False)
+        from matplotlib.figure import Figure
+
+        fig = Figure(figsize=(7.5, 4.6), dpi=dpi)
+        _draw(fig, curve, title)
+        out = io.BytesIO()
+        fig.savefig(out, format="png", metadata={"Software": None})
+    return out.getvalue()
 
 
 _STYLE_ATTRIBUTE = re.compile(rb' style="([^"]*)"')

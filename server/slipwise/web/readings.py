@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import hashlib
+import json
 
 from urllib.parse import urlencode
 
@@ -15,9 +16,13 @@ from slipwise.services.interpretation import torque_speed, with_stored_result
 from slipwise.services.records import Submission
 from slipwise.store.types import utcnow
 
+from slipwise.engine import Thresholds
+from slipwise.store.errors import ValidationError
+
 from .auth import requires
+from .errors import ApiError
 from .params import date_param, flag_param, int_param, query, text_param
-from .picture import picture_title, render_torque_speed_svg
+from .picture import picture_title, render_torque_speed_png, render_torque_speed_svg
 from .render import curve_json, day_log_json, listing_json, reading_record_json, review_json
 from .security import SVG_CONTENT_SECURITY_POLICY, json_body
 from .state import state
@@ -132,6 +137,39 @@ def picture_points(reading_id: int):
     record, summary = services.picture_record(st.db, reading_id)
     curve = with_stored_result(torque_speed(record, st.thresholds), summary["result"], record["speed_rpm"])
     return _json(curve_json(curve, summary["result"], record["speed_rpm"]))
+
+
+@bp.get("/readings/<id:reading_id>/certificate.pdf")
+@requires("technician")
+def certificate(reading_id: int):
+    """The reading's commissioning certificate: for supervisors, and for the technician who took it."""
+    query(())
+    st = state()
+    cert = services.certificate_record(st.db, reading_id)
+    if g.user["role"] != "supervisor" and cert.reading.row["technician"] != g.user["username"]:
+        raise ApiError(403, "forbidden", "a certificate is for supervisors and for the technician who took the "
+                                         "reading")
+    from .certificate import render_certificate  # fpdf2, segno and matplotlib load on first use
+    summary = {"tag": cert.nameplate["tag"], "taken_at": cert.nameplate["taken_at"],
+               "engine_version": cert.nameplate["engine_version"]}
+    stored = json.loads(cert.nameplate["result"])
+    try:
+        curve = with_stored_result(torque_speed(cert.engine_record, st.thresholds), stored,
+                                   cert.engine_record["speed_rpm"])
+        png = render_torque_speed_png(curve, title=picture_title(summary, stored, reading_id))
+    except ValidationError:  # a reading the engine cannot draw still gets its certificate, without the picture
+        png = None
+    pdf = render_certificate(cert, address=f"{request.host_url}#/reading/{reading_id}", picture_png=png,
+                             thresholds=st.thresholds or Thresholds())
+    resp = Response(pdf, mimetype="application/pdf")
+    name = f"certificate-{cert.reading.row['tag']}-reading-{reading_id}.pdf"
+    resp.headers["Content-Disposition"] = f'inline; filename="{_safe_filename(name)}"'
+    resp.headers["Cache-Control"] = "private, no-cache"
+    return resp
+
+
+def _safe_filename(name: str) -> str:
+    return "".join(c if c.isalnum() or c in "-._" else "_" for c in name)
 
 
 @bp.post("/readings/<id:reading_id>/review")

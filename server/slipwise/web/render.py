@@ -24,11 +24,12 @@ def _dumps(obj: Any) -> str:
     return json.dumps(obj, ensure_ascii=False, separators=(",", ":"))
 
 
-def _review(row: Mapping[str, Any]) -> dict | None:
+def _review(row: Mapping[str, Any], fingerprint_key: str = "fingerprint") -> dict | None:
     if row["decision"] is None:
         return None
     return {"decision": row["decision"], "comment": row["comment"], "reviewer": row["reviewer"],
-            "reviewer_name": row.get("reviewer_name") or None, "reviewed_at": row["reviewed_at"].isoformat()}
+            "reviewer_name": row.get("reviewer_name") or None, "reviewed_at": row["reviewed_at"].isoformat(),
+            "fingerprint": row[fingerprint_key]}
 
 
 def reading_json(row: Mapping[str, Any]) -> str:
@@ -39,7 +40,7 @@ def reading_json(row: Mapping[str, Any]) -> str:
             "technician_name": row["technician_name"], "taken_at": row["taken_at"],
             "received_at": row["received_at"].isoformat(), "engine_version": row["engine_version"],
             "supersedes": row["supersedes_id"], "superseded_by": row["superseded_by"],
-            "review": _review(row)}
+            "fingerprint": row["fingerprint"], "review": _review(row, "review_fingerprint")}
     return _dumps(head)[:-1] + ',"inputs":' + row["inputs"] + ',"result":' + served_result_text(row) + "}"
 
 
@@ -83,7 +84,8 @@ def listing_json(rows: Iterable[Mapping[str, Any]], next_url: str | None) -> str
 
 def review_json(review: Review) -> str:
     head = {"id": review.id, "reading_id": review.reading_id, "decision": review.decision,
-            "comment": review.comment, "reviewer": review.reviewer, "reviewed_at": review.reviewed_at.isoformat()}
+            "comment": review.comment, "reviewer": review.reviewer, "reviewed_at": review.reviewed_at.isoformat(),
+            "fingerprint": review.fingerprint}
     return _dumps(head)[:-1] + ',"reading":' + reading_record_json(review.reading) + "}"
 
 
