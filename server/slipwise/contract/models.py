@@ -397,12 +397,10 @@ def nameplate_values(row: Mapping[str, Any]) -> dict:
 
 
 def reading_values(row: Mapping[str, Any]) -> dict:
-    """The reading's fields of a row that is not a request body, by the same rules (tests only when given)."""
+    """The reading's fields of a row that is not a request body, by the same rules."""
     return given_reading({name: parse_value(name, row.get(name)) for name in READING_NAMES})
 
 
 def given_reading(values: Mapping[str, Any]) -> dict:
-    """A parsed reading as stored: every running-reading number (None when blank), the sheet's tests only
-    when given, so a reading without them is stored (and hashed for replays) as before engine 1.2.0."""
-    return {name: values.get(name) for name in READING_NAMES
-            if name not in TEST_FIELDS or values.get(name) not in (None, "")}
+    """A parsed reading as stored: every reading field, None where blank (text too)."""
+    return {name: (values.get(name) if values.get(name) != "" else None) for name in READING_NAMES}

@@ -17,7 +17,7 @@ from pydantic import BaseModel, ConfigDict, Field, create_model
 from pydantic.json_schema import models_json_schema
 
 from .fields import (CHOICE_FIELDS, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS, NUMBER_FIELDS,
-                     READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEST_FIELDS, TEXT_FIELDS,
+                     READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_FIELDS,
                      TEXT_RESULT_COLUMNS)
 
 REF_TEMPLATE = "#/components/schemas/{model}"
@@ -29,13 +29,8 @@ class _Response(BaseModel):
 
 
 def _declared(name: str) -> tuple[Any, Any]:
-    """A nameplate or reading field as a stored record shows it: the declared type, null where not given.
-
-    The sheet's tests (engine 1.2.0) are stored only when given: absent from a reading without them.
-    """
-    if name in TEST_FIELDS:
-        kind, text = _declared_type(name)
-        return Optional[kind], Field(None, description=text + "; absent when not given")
+    """A nameplate or reading field as a stored record shows it: the declared type, null where not given
+    (the sheet's tests, engine 1.2.0, are null in readings stored before them)."""
     kind, text = _declared_type(name)
     return Optional[kind], Field(description=text)
 
