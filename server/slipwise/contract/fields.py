@@ -152,7 +152,8 @@ NAMEPLATE_FIELDS: tuple[str, ...] = ("tag",) + tuple(f.name for f in NAMEPLATE_N
     f.name for f in NAMEPLATE_CHOICES)
 
 # name; serial; calibration due date - each of name and serial at least one visible character
-_PART = r"[^;\x00-\x1f\x7f-\x9f]*[^;\s\x00-\x1f\x7f-\x9f][^;\x00-\x1f\x7f-\x9f]*"
+# (the visible character is spelled out, not \s: Python's and ECMA-262's \s differ)
+_PART = r"[^;\x00-\x1f\x7f-\x9f]*[^;\x00-\x20\x7f-\x9f][^;\x00-\x1f\x7f-\x9f]*"
 _INSTRUMENT_LINE = rf"^{_PART};{_PART};[ ]*(20[0-9]{{2}}-(0[1-9]|1[0-2])-(0[1-9]|[12][0-9]|3[01]))$"
 # --- text ------------------------------------------------------------------
 _TEXT_REFUSED = frozenset({"Cc", "Cs"})   # tab and newline are let through where one_line is False

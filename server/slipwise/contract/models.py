@@ -86,7 +86,7 @@ def _text_schema(name: str, limit: int | None = None) -> dict:
         # lines of the declared shape (blank lines between them allowed), spaces around the whole
         line = spec.line_pattern.lstrip("^").rstrip("$")
         sp = f"[{_TRIM_CLASS}]*"
-        pattern = f"^{sp}({line})?([\\x20\\t]*\\n{sp}({line})?)*{sp}$"
+        pattern = f"^{sp}({line})?([\\x20\\t]*\\n[\\x20\\t]*({line})?)*{sp}$"
     elif spec.one_line:
         pattern = f"^[^\\x00-\\x1f\\x7f-\\x9f]*[^{_TRIM_CLASS}\\x00-\\x1f\\x7f-\\x9f][^\\x00-\\x1f\\x7f-\\x9f]*$"
     elif spec.required:
