@@ -127,6 +127,24 @@ MUTATIONS = (
              "rounding = 100.0 * 0.5 * stated_resolution(x) / np.abs(x)",
              "rounding = 100.0 * 0.25 * stated_resolution(x) / np.abs(x)",
              ("tests/physics/test_meter.py",)),
+    Mutation("S1", "star-delta relay judged against the full FLA (engine passes no starter)", "server/slipwise/engine/sheet.py",
+             'ovl = protection.overload_setting(np.where(np.isnan(setting), 1.0, setting), pl("rated_current_a"),\n'
+             '                                      t["starter"], standard, service_factor=sf)',
+             'ovl = protection.overload_setting(np.where(np.isnan(setting), 1.0, setting), pl("rated_current_a"),\n'
+             '                                      np.where(t["starter"] == "", "", "direct"), standard, service_factor=sf)',
+             ("tests/engine/test_sheet.py",)),
+    Mutation("S2", "service factor ignored in the NEC limit", "server/slipwise/engine/sheet.py",
+             'sf = np.where(pl("service_factor_given"), pl("service_factor"), np.nan)',
+             'sf = np.full(n, np.nan)',
+             ("tests/engine/test_sheet.py",)),
+    Mutation("S3", "instrument due date compared the wrong way", "server/slipwise/engine/sheet.py",
+             'for name, serial, due in items if due < day]',
+             'for name, serial, due in items if due > day]',
+             ("tests/engine/test_sheet.py",)),
+    Mutation("S4", "PI minimum: class A given 2.0 (IEEE 43: 1.5)", PHYS + "insulation.py",
+             'PI_MINIMUM = {"a": 1.5, "b": 2.0, "f": 2.0, "h": 2.0}',
+             'PI_MINIMUM = {"a": 2.0, "b": 2.0, "f": 2.0, "h": 2.0}',
+             ("tests/engine/test_sheet.py",)),
 )
 
 

@@ -15,12 +15,17 @@ export function fieldsFrom(decl) {
   const withRules = (f) => ({ ...f, rules });
   const text = Object.fromEntries(Object.entries(decl.text).map(([name, f]) => [name, {
     ...f, rules, refused: new RegExp(`[${f.refused_categories.map((c) => `\\p{${c}}`).join("")}]`, "u"),
+    line: f.line_pattern ? new RegExp(f.line_pattern) : null,
   }]));
   const NAMEPLATE_NUMBERS = decl.nameplate_numbers.map(withRules);
   const READING_NUMBERS = decl.reading_numbers.map(withRules);
+  const READING_TEST_NUMBERS = (decl.reading_test_numbers || []).map(withRules);
+  const READING_CHOICES = decl.reading_choices || [];
   return {
-    NAMEPLATE_NUMBERS, READING_NUMBERS, NAMEPLATE_CHOICES: decl.nameplate_choices, TEXT: text,
-    FIELD: Object.fromEntries([...NAMEPLATE_NUMBERS, ...READING_NUMBERS].map((f) => [f.name, f])),
+    NAMEPLATE_NUMBERS, READING_NUMBERS, READING_TEST_NUMBERS, READING_CHOICES,
+    NAMEPLATE_CHOICES: decl.nameplate_choices, TEXT: text, CRITERIA: decl.sheet_criteria || {},
+    CHOICE: Object.fromEntries([...decl.nameplate_choices, ...READING_CHOICES].map((c) => [c.name, c])),
+    FIELD: Object.fromEntries([...NAMEPLATE_NUMBERS, ...READING_NUMBERS, ...READING_TEST_NUMBERS].map((f) => [f.name, f])),
   };
 }
 
@@ -78,7 +83,24 @@ export function parseText(t, raw) {
     return { value: text, error: `${t.label} holds U+${code}, a control, invisible or direction-changing character: type it again.` };
   }
   if (chars.length > t.max_chars) return { value: text, error: `${t.label} is ${chars.length} characters long; at most ${t.max_chars}.` };
+  if (t.line) {
+    const lines = text.split("\n");
+    for (let k = 0; k < lines.length; k += 1) {
+      const line = lines[k].replace(/^[ \t]+|[ \t]+$/g, "");
+      if (line && (!t.line.test(line) || !realDate(line.split(";")[2]))) {
+        return { value: text, error: `${t.label}, line ${k + 1}: ${t.help || "not in the declared form"}` };
+      }
+    }
+  }
   return { value: text, error: null };
+}
+
+/** A YYYY-MM-DD date that exists in the calendar (2025-02-29 does not). */
+function realDate(text) {
+  const m = /^\s*(\d{4})-(\d{2})-(\d{2})\s*$/.exec(text ?? "");
+  if (!m) return false;
+  const d = new Date(Date.UTC(+m[1], +m[2] - 1, +m[3]));
+  return d.getUTCFullYear() === +m[1] && d.getUTCMonth() === +m[2] - 1 && d.getUTCDate() === +m[3];
 }
 
 /** A choice matched without regard to case: {value, error}. */

@@ -2,6 +2,7 @@
 // against the limits, the findings as sentences with their cautions, supply quality, margins.
 
 import { fmt, h, qty, s, times } from "./dom.js";
+import { testsBlock } from "./sheet.js";
 
 // The thresholds the bar is drawn with: the server's defaults (server/physics/flags.py, Thresholds)
 // until a session brings the ones in force (kept for offline use); the flags come from the server.
@@ -30,13 +31,24 @@ export const FLAG_WORDS = {
   speed_above_synchronous: "Speed above synchronous",
   readings_inconsistent: "Readings contradict each other",
   starting_torque_low: "Starting torque margin low",
+  insulation_low: "Insulation resistance low",
+  polarization_index_low: "Polarization index low",
+  insulation_test_voltage: "Insulation test voltage outside the table",
+  winding_resistance_unbalance: "Winding resistances unbalanced",
+  overload_setting_high: "Overload relay set too high",
+  overload_setting_low: "Overload relay set too low",
+  vibration_high: "Vibration high",
+  rotation_wrong: "Wrong direction of rotation",
+  instrument_calibration_expired: "Instrument out of calibration",
 };
 /** A supervisor's review decision in words. */
 export function reviewWord(d) {
   return { accepted: "accepted", retake: "retake asked", rejected: "rejected" }[d] || d;
 }
 
-const SEVERE = new Set(["overloaded", "over_service_factor", "near_breakdown", "readings_inconsistent", "speed_above_synchronous"]);
+const SEVERE = new Set(["overloaded", "over_service_factor", "near_breakdown", "readings_inconsistent", "speed_above_synchronous",
+  "insulation_low", "polarization_index_low", "rotation_wrong", "overload_setting_high", "vibration_high",
+  "winding_resistance_unbalance"]);
 
 export const SAFETY_NOTE = "These results support a qualified person's judgement; they do not replace it. Before any work on "
   + "the motor or its supply, isolate, lock off and prove dead. Local electrical codes and licensed practice prevail.";
@@ -150,6 +162,8 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
   }
   out.push(h("section", { class: "panel", "aria-labelledby": "find-h" },
     h("h2", { id: "find-h" }, "Findings"), findingsList(result.findings)));
+  const tests = testsBlock(result);
+  if (tests) out.push(tests);
   out.push(h("section", { class: "panel", "aria-labelledby": "supply-h" },
     h("h2", { id: "supply-h" }, "Supply quality"),
     h("dl", { class: "facts" },

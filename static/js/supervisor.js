@@ -4,7 +4,7 @@
 
 import { api, ApiError, NetworkError } from "./api.js";
 import { clear, fmt, h, localDate, s, showTime } from "./dom.js";
-import { FIELD, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, READING_NUMBERS } from "./fields.js";
+import { FIELD, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, READING_CHOICES, READING_NUMBERS, READING_TEST_NUMBERS, TEXT_FIELDS } from "./fields.js";
 import { FLAG_WORDS, LIMITS, reviewWord, verdict } from "./result.js";
 import { go, routeIsCurrent } from "./router.js";
 import { toast } from "./shell.js";
@@ -228,6 +228,14 @@ export function inputsBlock(reading, motor) {
   return h("section", { class: "panel", "aria-labelledby": "inputs-h" }, h("h2", { id: "inputs-h" }, "Inputs"),
     h("table", { class: "kv" }, h("caption", { class: "sr-only" }, "Readings as entered"),
       h("tbody", {}, READING_NUMBERS.map((f) => row(f.label, reading.inputs[f.name], f.unit)))),
+    // the commissioning sheet's tests, where any was recorded (readings before engine 1.2.0 have none)
+    [...READING_TEST_NUMBERS, ...READING_CHOICES, TEXT_FIELDS.instruments, TEXT_FIELDS.notes].some((f) => reading.inputs[f.name] != null)
+      ? [h("h3", {}, "Commissioning tests as entered"), h("table", { class: "kv", id: "sheet-inputs" },
+        h("caption", { class: "sr-only" }, "Tests as entered"),
+        h("tbody", {}, READING_TEST_NUMBERS.map((f) => row(f.label, reading.inputs[f.name], f.unit)),
+          READING_CHOICES.map((c) => row(c.label, reading.inputs[c.name])),
+          [TEXT_FIELDS.instruments, TEXT_FIELDS.notes].map((t) => row(t.label, reading.inputs[t.name]))))]
+      : null,
     h("h3", {}, `Nameplate (revision ${reading.motor_revision})`),
     h("table", { class: "kv" }, h("caption", { class: "sr-only" }, "Nameplate used"),
       h("tbody", {}, NAMEPLATE_NUMBERS.filter((f) => !(f.name.startsWith("rated_power_") && np[f.name] == null))

@@ -11,6 +11,7 @@ import { provisional } from "./provisional.js";
 import { provisionalBlock, resultBlocks, reviewWord, SAFETY_NOTE } from "./result.js";
 import { go, routeIsCurrent } from "./router.js";
 import { askForBackgroundSync, sendReading, sync } from "./sending.js";
+import { sheetForm } from "./sheet.js";
 import { ctx, setReachable, toast } from "./shell.js";
 import { historyBlock, inputsBlock, reviewForm, state as logState } from "./supervisor.js";
 
@@ -235,6 +236,7 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
   }
   const values = opts.values || {};
   const fields = Object.fromEntries(READING_NUMBERS.map((f) => [f.name, numberField(f, values[f.name], "rd")]));
+  const sheet = sheetForm(motor, values, numberField); // the de-energised tests, vibration, instruments, notes
   const group = (legend, names, extra) => h("fieldset", { class: "panel" }, h("legend", {}, legend), extra || null,
     h("div", { class: "grid" }, names.map((n) => fields[n].el)));
   const aside = h("aside", { "aria-label": "Provisional values as you type" });
@@ -249,12 +251,14 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
       if (r.error && !firstBad) firstBad = fld.input;
       if (r.value != null && !r.error) out[fld.f.name] = r.value;
     }
-    return { out, firstBad };
+    const tests = sheet.read();
+    return { out: { ...out, ...tests.out }, firstBad: firstBad || tests.firstBad };
   };
   const refresh = () => {
     const { out } = readValues();
     const checks = crossCheck(motor, out);
     for (const fld of Object.values(fields)) fld.check.textContent = checks[fld.f.name] || "";
+    sheet.refresh(out);
     clear(aside, provisionalBlock(provisional({ ...motor, ...out }), "As you type"));
     return { out, checks };
   };
@@ -269,12 +273,14 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
         h("strong", {}, opts.asked.comment || "no comment given")) : null,
       h("p", {}, "The fields hold the old reading's values so you can see what was entered: measure again and ",
         "overwrite each one before you send.")) : null,
+    ...sheet.before,
     group("Speed and frequency", ["frequency_hz", "speed_rpm"]),
     group("Line currents", ["current_l1_a", "current_l2_a", "current_l3_a"], h("p", { class: "hint" }, "Clamp around one phase conductor at a time. At least one current.")),
     group("Line voltages", ["voltage_l12_v", "voltage_l23_v", "voltage_l31_v"], h("p", { class: "hint" }, "Line to line at the motor terminals or its isolator. Needed on mains; optional on a drive.")),
     group("Power analyser (optional)", ["power_kw", "power_factor"]),
     h("details", { class: "panel" }, h("summary", {}, "Instruments and running time (optional)"),
       h("div", { class: "grid" }, ["minutes_running", "tachometer_resolution_rpm", "current_accuracy_pct", "voltage_accuracy_pct", "power_accuracy_pct"].map((n) => fields[n].el))),
+    ...sheet.after,
     formError,
     h("div", { class: "actions" }, submit, h("a", { class: "btn", href: "#/motors" }, "Other motor")));
   form.addEventListener("input", refresh);
@@ -311,11 +317,11 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
   clear(el, h("h1", { tabindex: "-1" }, opts.correcting ? "Correct the reading" : "New reading"), motorSummary(motor),
     h("div", { class: "reading-layout" }, form, aside));
   refresh();
-  if (opts.serverError && fields[opts.serverError.field]) {
-    const fld = fields[opts.serverError.field];
-    fld.error.textContent = opts.serverError.message;
-    fld.input.setAttribute("aria-invalid", "true");
-    fld.input.focus();
+  const named = opts.serverError && (fields[opts.serverError.field] || sheet.fields[opts.serverError.field]);
+  if (named) {
+    if (named.error) named.error.textContent = opts.serverError.message;
+    named.input.setAttribute("aria-invalid", "true");
+    named.input.focus();
   } else fields.frequency_hz.input.focus();
 }
 

@@ -64,6 +64,39 @@ TABLE = [
     ("tag of 81 characters", "tag", "P" * 81, REFUSED, False),
     ("tag of 80 characters", "tag", "P" * 80, "P" * 80, False),
     ("tag with spaces around", "tag", " P-101 ", "P-101", False),
+    # the commissioning sheet's tests (engine 1.2.0)
+    ("insulation test voltage with a decimal comma", "insulation_test_voltage_v", "500,0", 500.0, False),
+    ("insulation resistance negative", "insulation_resistance_1min_mohm", "-1", REFUSED, False),
+    ("insulation resistance words", "insulation_resistance_1min_mohm", ">2000", REFUSED, False),
+    ("insulation resistance beyond 1 TΩ", "insulation_resistance_10min_mohm", "2e6", REFUSED, False),
+    ("insulation test voltage below 50 V", "insulation_test_voltage_v", "10", REFUSED, False),
+    ("winding temperature below -40 °C", "winding_temperature_c", "-41", REFUSED, False),
+    ("winding temperature negative, allowed", "winding_temperature_c", "-5", -5.0, False),
+    ("winding resistance zero", "winding_resistance_l12_ohm", "0", REFUSED, False),
+    ("winding resistance ambiguous comma", "winding_resistance_l23_ohm", "1,250", REFUSED, False),
+    ("winding resistance small", "winding_resistance_l31_ohm", "0,0125", 0.0125, False),
+    ("overload setting zero", "overload_setting_a", "0", REFUSED, False),
+    ("vibration above 100 mm/s", "vibration_velocity_mm_s", "150", REFUSED, False),
+    ("vibration in inches", "vibration_velocity_mm_s", "0.1in/s", REFUSED, False),
+    ("winding type another case", "winding_type", "Form", "form", False),
+    ("winding type unknown", "winding_type", "hairpin", REFUSED, False),
+    ("insulation class lower case", "insulation_class", "f", "F", False),
+    ("insulation class E unknown", "insulation_class", "E", REFUSED, False),
+    ("winding material aluminum spelling", "winding_material", "aluminum", REFUSED, False),
+    ("starter star-delta with a hyphen", "starter", "star-delta", REFUSED, False),
+    ("starter upper case", "starter", "STAR_DELTA", "star_delta", False),
+    ("foundation unknown", "foundation", "soft", REFUSED, False),
+    ("rotation true is not yes", "rotation_correct", "true", REFUSED, False),
+    ("rotation YES", "rotation_correct", "YES", "yes", False),
+    ("instruments, two lines", "instruments", "IR tester; A-1; 2030-01-31\nClamp; C-9; 2030-06-30",
+     "IR tester; A-1; 2030-01-31\nClamp; C-9; 2030-06-30", False),
+    ("instruments without a serial", "instruments", "IR tester; 2030-01-31", REFUSED, False),
+    ("instruments with a blank serial", "instruments", "IR tester; ; 2030-01-31", REFUSED, False),
+    ("instruments with a day that does not exist", "instruments", "IR tester; A-1; 2030-02-30", REFUSED, False),
+    ("instruments with a day-first date", "instruments", "IR tester; A-1; 31/01/2030", REFUSED, False),
+    ("instruments with a control character", "instruments", "IR tester; A\x07; 2030-01-31", REFUSED, False),
+    ("notes on two lines", "notes", "Coupling checked.\nGuard refitted.", "Coupling checked.\nGuard refitted.", False),
+    ("notes of 2001 characters", "notes", "n" * 2001, REFUSED, False),
 ]
 IDS = [row[0] for row in TABLE]
 
@@ -90,7 +123,9 @@ def test_contract_scalar(name, field, raw, expected, _):
 @pytest.mark.parametrize("name, field, raw, expected, _", TABLE, ids=IDS)
 def test_contract_vectorised(name, field, raw, expected, _):
     # the raw value among good ones, in a column as pandas reads a CSV of text
-    good = {"tag": "P-1", "design": "N", "power_factor": "0.8", "poles": "4", "speed_rpm": "1472"}.get(field, "50")
+    good = {"tag": "P-1", "design": "N", "power_factor": "0.8", "poles": "4", "speed_rpm": "1472", "winding_type": "form",
+            "insulation_class": "F", "winding_material": "copper", "starter": "direct", "foundation": "rigid",
+            "rotation_correct": "yes", "instruments": "IR tester; A-1; 2030-01-31", "notes": "ok"}.get(field, "50")
     column = pd.Series([good, raw, None], dtype=object)
     values, messages = parse_column(field, column)
     value = REFUSED if messages[1] else values[1]
@@ -129,7 +164,7 @@ const out = rows.map(([field, raw]) => {
   let r;
   if (field in F.TEXT) r = parseText(F.TEXT[field], raw);
   else if (field in F.FIELD) r = parseField(F.FIELD[field], raw);
-  else r = parseChoice(F.NAMEPLATE_CHOICES.find((c) => c.name === field), raw, F.NAMEPLATE_NUMBERS[0].rules);
+  else r = parseChoice(F.CHOICE[field], raw, F.NAMEPLATE_NUMBERS[0].rules);
   return { value: r.value, refused: r.error !== null, error: r.error };
 });
 process.stdout.write(JSON.stringify(out));

@@ -201,7 +201,48 @@ def parse_text(name: str, raw: Any, max_chars: int | None = None) -> str:
         raise FieldError(text_message(spec, text, bad), name)
     if len(text) > spec.max_chars:
         raise FieldError(text_message(spec, text), name)
+    if spec.line_pattern:
+        text_lines(spec, text)
     return text
+
+
+LINE_SPACE = " \t"
+
+
+def text_lines(spec: TextField, text: str) -> list[tuple[str, ...]]:
+    """The non-blank lines of a field with a ``line_pattern``, split at ``;`` and trimmed.
+
+    Raises :class:`FieldError` naming the field and the line when one does not match, or when a
+    date in it does not exist (``2025-02-30``).
+    """
+    import datetime as _dt
+
+    pattern = re.compile(spec.line_pattern)
+    out = []
+    for k, line in enumerate(text.split("\n"), start=1):
+        line = line.strip(LINE_SPACE)
+        if not line:
+            continue
+        m = pattern.match(line)
+        parts = tuple(p.strip(LINE_SPACE) for p in line.split(";"))
+        ok = m is not None
+        if ok and spec.name == "instruments":
+            try:
+                _dt.date.fromisoformat(parts[2])
+            except ValueError:
+                ok = False
+        if not ok:
+            raise FieldError(f"{spec.name}: line {k} ({_show(line)}) must be {spec.help.split(': ', 1)[-1]}",
+                             spec.name)
+        out.append(parts)
+    return out
+
+
+def instrument_list(text: str | None) -> list[tuple[str, str, str]]:
+    """``(name, serial, calibration due date as YYYY-MM-DD)`` of each line of an ``instruments`` value."""
+    if not text:
+        return []
+    return [tuple(p) for p in text_lines(TEXT_FIELDS["instruments"], trim(text))]  # type: ignore[misc]
 
 
 def parse_value(field: str, raw: Any) -> Any:

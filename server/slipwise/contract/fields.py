@@ -12,8 +12,9 @@ from dataclasses import dataclass
 
 # 1.1.0: verdicts on the band, saturation, breakdown band, (V/f)^2 slip law on mains, IE tables at 60 Hz.
 # 1.1.1: load band: a kW reading good to half its last stated digit; a method clipped at zero in the fusion.
+# 1.2.0: the commissioning sheet's de-energised tests, vibration and rotation (optional reading fields).
 # A stored result keeps the version that made it; a newer engine never rewrites it.
-ENGINE_VERSION = "1.1.1"
+ENGINE_VERSION = "1.2.0"
 
 
 @dataclass(frozen=True)
@@ -35,6 +36,8 @@ class NumberField:
     label: str = ""
     hint: str = ""
     shown_unit: str = ""
+    #: fields that must be given with this one (the engine refuses the reading naming the first missing)
+    needs: tuple[str, ...] = ()
 
     kind = "number"
 
@@ -76,6 +79,9 @@ class TextField:
     refused_categories: frozenset[str] = frozenset({"Cc", "Cs"})
     help: str = ""
     label: str = ""
+    #: each non-blank line must match this (Python re and ECMA-262 alike), after trimming spaces and tabs
+    line_pattern: str = ""
+    hint: str = ""
 
     kind = "text"
 
@@ -145,6 +151,10 @@ NAMEPLATE_CHOICES: tuple[ChoiceField, ...] = (
 NAMEPLATE_FIELDS: tuple[str, ...] = ("tag",) + tuple(f.name for f in NAMEPLATE_NUMBERS) + tuple(
     f.name for f in NAMEPLATE_CHOICES)
 
+# name; serial; calibration due date - each of name and serial at least one visible character
+# (the visible character is spelled out, not \s: Python's and ECMA-262's \s differ)
+_PART = r"[^;\x00-\x1f\x7f-\x9f]*[^;\x00-\x20\x7f-\x9f][^;\x00-\x1f\x7f-\x9f]*"
+_INSTRUMENT_LINE = rf"^{_PART};{_PART};[ ]*(20[0-9]{{2}}-(0[1-9]|1[0-2])-(0[1-9]|[12][0-9]|3[01]))$"
 # --- text ------------------------------------------------------------------
 _TEXT_REFUSED = frozenset({"Cc", "Cs"})   # tab and newline are let through where one_line is False
 TEXT_FIELDS: dict[str, TextField] = {f.name: f for f in (
@@ -155,6 +165,11 @@ TEXT_FIELDS: dict[str, TextField] = {f.name: f for f in (
     TextField("description", 2000, help="what the motor drives", label="Description"),
     TextField("comment", 2000, help="the reviewer's reason; required for retake and rejected", label="Comment"),
     TextField("username", 64, required=True, one_line=True, help="login name", label="User name"),
+    TextField("notes", 2000, help="the technician's notes on this reading", label="Notes"),
+    TextField("instruments", 1000, line_pattern=_INSTRUMENT_LINE,
+              help="the instruments used, one per line: name; serial; calibration due date (YYYY-MM-DD)",
+              label="Instruments used",
+              hint="One per line: name; serial; calibration due date, e.g. Insulation tester; IT-2231; 2025-03-31"),
 )}
 
 # --- reading ---------------------------------------------------------------
@@ -188,7 +203,71 @@ READING_NUMBERS: tuple[NumberField, ...] = (
 )
 CURRENT_FIELDS = ("current_l1_a", "current_l2_a", "current_l3_a")
 VOLTAGE_FIELDS = ("voltage_l12_v", "voltage_l23_v", "voltage_l31_v")
-READING_FIELDS: tuple[str, ...] = tuple(f.name for f in READING_NUMBERS) + ("taken_at",)
+
+# --- the commissioning sheet's tests (all optional; engine 1.2.0) -----------
+WINDING_TYPES = ("random", "form")
+INSULATION_CLASSES = ("A", "B", "F", "H")
+WINDING_MATERIALS = ("copper", "aluminium")
+STARTERS = ("direct", "star_delta", "soft", "drive")
+FOUNDATIONS = ("rigid", "flexible")
+YES_NO = ("yes", "no")
+_IR_HINT = "Megohmmeter reading, winding to earth."
+READING_TEST_NUMBERS: tuple[NumberField, ...] = (
+    NumberField("insulation_resistance_1min_mohm", 0.0, 1.0e6, "MΩ",
+                help="insulation resistance to earth after 1 minute of the DC test voltage",
+                label="Insulation resistance, 1 min", hint=_IR_HINT + " After 1 minute.",
+                needs=("winding_temperature_c",)),
+    NumberField("insulation_resistance_10min_mohm", 0.0, 1.0e6, "MΩ",
+                help="insulation resistance after 10 minutes (for the polarization index)",
+                label="Insulation resistance, 10 min", hint="Optional: after 10 minutes, for the polarization index.",
+                needs=("insulation_resistance_1min_mohm",)),
+    NumberField("insulation_test_voltage_v", 50.0, 15000.0, "V", help="DC test voltage applied",
+                label="Insulation test voltage", hint="DC voltage applied by the tester."),
+    NumberField("winding_temperature_c", -40.0, 180.0, "°C",
+                help="winding temperature during the insulation and resistance tests",
+                label="Winding temperature", hint="During the tests; ambient for a motor that has stood cold."),
+    NumberField("winding_resistance_l12_ohm", 1.0e-5, 1.0e5, "Ω", help="resistance between terminals 1 and 2",
+                label="Winding resistance L1–L2", hint="Low-resistance ohmmeter (four-wire) at the motor terminals."),
+    NumberField("winding_resistance_l23_ohm", 1.0e-5, 1.0e5, "Ω", help="resistance between terminals 2 and 3",
+                label="Winding resistance L2–L3"),
+    NumberField("winding_resistance_l31_ohm", 1.0e-5, 1.0e5, "Ω", help="resistance between terminals 3 and 1",
+                label="Winding resistance L3–L1"),
+    NumberField("overload_setting_a", 0.01, 10000.0, "A", help="current the overload relay is set to",
+                label="Overload relay setting", hint="The relay's dial setting.", needs=("starter",)),
+    NumberField("vibration_velocity_mm_s", 0.0, 100.0, "mm/s",
+                help="largest broadband RMS velocity of the axes measured on the bearing housings",
+                label="Vibration velocity", hint="Largest RMS velocity of the axes measured, running."),
+)
+READING_CHOICES: tuple[ChoiceField, ...] = (
+    ChoiceField("winding_type", WINDING_TYPES, default="form",
+                help="random-wound or form-wound stator winding; form (the stricter minimum at 1 kV and above, "
+                     "the same 5 MΩ below) when blank",
+                label="Winding type", hint="Random-wound (most low-voltage motors) or form-wound coils. Blank: form "
+                                           "(stricter above 1 kV; the same minimum below)."),
+    ChoiceField("insulation_class", INSULATION_CLASSES, default="F",
+                help="thermal class of the insulation (nameplate); F (polarization index minimum 2.0) when blank",
+                label="Insulation class", hint="Thermal class on the nameplate. Blank: F."),
+    ChoiceField("winding_made_before_1970", YES_NO, default="no",
+                help="winding made before about 1970: the IEEE 43 minimum is then kV + 1 MΩ",
+                label="Winding made before 1970", hint="Blank: no."),
+    ChoiceField("winding_material", WINDING_MATERIALS, default="copper", help="conductor of the stator winding",
+                label="Winding conductor", hint="Blank: copper."),
+    ChoiceField("starter", STARTERS, help="starter type; star_delta: the relay sits in the winding circuit",
+                label="Starter", hint="Star-delta: the relay carries the winding current (FLA/√3)."),
+    ChoiceField("foundation", FOUNDATIONS, default="rigid",
+                help="machine support for the ISO 10816-3 zone boundaries; rigid (the lower boundaries) when blank",
+                label="Foundation", hint="Rigid: the lowest natural frequency of machine and support is above "
+                                         "the running speed (most floor-mounted motors). Blank: rigid."),
+    ChoiceField("rotation_correct", YES_NO, help="the shaft turns the way the driven machine needs",
+                label="Rotation correct", hint="Bumped or run: does the shaft turn the right way?"),
+)
+READING_TEXTS: tuple[str, ...] = ("instruments", "notes")
+READING_FIELDS: tuple[str, ...] = (tuple(f.name for f in READING_NUMBERS) + ("taken_at",)
+                                   + tuple(f.name for f in READING_TEST_NUMBERS)
+                                   + tuple(f.name for f in READING_CHOICES) + READING_TEXTS)
+#: The sheet's test fields (numbers, choices, text), in the order the page shows them.
+TEST_FIELDS: tuple[str, ...] = (tuple(f.name for f in READING_TEST_NUMBERS) + tuple(f.name for f in READING_CHOICES)
+                                + READING_TEXTS)
 TAKEN_AT_HELP = ("ISO 8601 date and time of the reading, e.g. 2024-05-17T09:30:00+02:00 (a time without an offset "
                  "is the technician's local clock); the time of receipt when blank")
 
@@ -219,6 +298,14 @@ RESULT_COLUMNS: tuple[str, ...] = (
     "verdict", "breakdown_margin_low", "limit_flags",
     "load_state", "breakdown_state", "supply_state", "voltage_unbalance_state", "current_unbalance_state",
     "starting_state",
+    # extensions since engine 1.2.0: the commissioning sheet's tests (absent from earlier results)
+    "insulation_resistance_40c_mohm", "insulation_minimum_mohm", "polarization_index",
+    "winding_resistance_unbalance_pct", "overload_setting_pct", "vibration_zone",
+    "polarization_index_minimum", "insulation_test_voltage_min_v", "insulation_test_voltage_max_v",
+    "winding_resistance_25c_ohm", "overload_setting_max_pct", "overload_relay_current_a",
+    "vibration_zone_bc_mm_s", "instruments_calibration_expired",
+    "insulation_state", "polarization_index_state", "insulation_test_voltage_state", "winding_resistance_state",
+    "overload_setting_state", "vibration_state", "rotation_state", "instruments_state",
 )
 #: The columns of a result stored by engine 1.0.0 (release 2): every later column may be absent from one.
 RESULT_COLUMNS_1_0: tuple[str, ...] = RESULT_COLUMNS[:RESULT_COLUMNS.index("engine_version") + 1]
@@ -229,7 +316,11 @@ STATE_WORDS: tuple[str, ...] = ("clear", "at_limit", "beyond")
 TEXT_RESULT_COLUMNS = frozenset({"efficiency_class", "supply_zone", "flags", "findings", "error",
                                  "operating_side", "error_field", "engine_version",
                                  "verdict", "limit_flags", "load_state", "breakdown_state", "supply_state",
-                                 "voltage_unbalance_state", "current_unbalance_state", "starting_state"})
+                                 "voltage_unbalance_state", "current_unbalance_state", "starting_state",
+                                 "vibration_zone", "instruments_calibration_expired",
+                                 "insulation_state", "polarization_index_state", "insulation_test_voltage_state",
+                                 "winding_resistance_state", "overload_setting_state", "vibration_state",
+                                 "rotation_state", "instruments_state"})
 INTEGER_RESULT_COLUMNS = frozenset({"poles"})
 
 FLAG_CODES: tuple[str, ...] = (
@@ -238,11 +329,14 @@ FLAG_CODES: tuple[str, ...] = (
     "speed_above_synchronous", "readings_inconsistent",
     # extensions
     "starting_torque_low",
+    # extensions since engine 1.2.0: the commissioning sheet's tests
+    "insulation_low", "polarization_index_low", "winding_resistance_unbalance", "overload_setting_high",
+    "overload_setting_low", "vibration_high", "rotation_wrong", "instrument_calibration_expired",
 )
 
-NUMBER_FIELDS = {f.name: f for f in NAMEPLATE_NUMBERS + READING_NUMBERS}
-CHOICE_FIELDS = {f.name: f for f in NAMEPLATE_CHOICES}
+NUMBER_FIELDS = {f.name: f for f in NAMEPLATE_NUMBERS + READING_NUMBERS + READING_TEST_NUMBERS}
+CHOICE_FIELDS = {f.name: f for f in NAMEPLATE_CHOICES + READING_CHOICES}
 # Record ids are INTEGER columns: 32-bit on PostgreSQL, so a larger id can never exist.
 MAX_ID = 2 ** 31 - 1
 
-__all__ = ["ENGINE_VERSION", "DESIGNS", "SUPPLIES", "DRIVEN_LOADS", "TAG_MAX_CHARS", "TAG_REFUSED_CATEGORIES", "NAMEPLATE_NUMBERS", "NAMEPLATE_CHOICES", "NAMEPLATE_FIELDS", "TEXT_FIELDS", "READING_NUMBERS", "CURRENT_FIELDS", "VOLTAGE_FIELDS", "READING_FIELDS", "TAKEN_AT_HELP", "REVIEW_DECISIONS", "DECISIONS_NEEDING_COMMENT", "INPUT_FIELDS", "RESULT_COLUMNS", "RESULT_COLUMNS_1_0", "VERDICT_WORDS", "STATE_WORDS", "TEXT_RESULT_COLUMNS", "INTEGER_RESULT_COLUMNS", "FLAG_CODES", "NUMBER_FIELDS", "CHOICE_FIELDS", "MAX_ID", "NumberField", "ChoiceField", "TextField"]
+__all__ = ["ENGINE_VERSION", "DESIGNS", "SUPPLIES", "DRIVEN_LOADS", "TAG_MAX_CHARS", "TAG_REFUSED_CATEGORIES", "NAMEPLATE_NUMBERS", "NAMEPLATE_CHOICES", "NAMEPLATE_FIELDS", "TEXT_FIELDS", "READING_NUMBERS", "CURRENT_FIELDS", "VOLTAGE_FIELDS", "READING_FIELDS", "READING_TEST_NUMBERS", "READING_CHOICES", "READING_TEXTS", "TEST_FIELDS", "WINDING_TYPES", "INSULATION_CLASSES", "WINDING_MATERIALS", "STARTERS", "FOUNDATIONS", "YES_NO", "TAKEN_AT_HELP", "REVIEW_DECISIONS", "DECISIONS_NEEDING_COMMENT", "INPUT_FIELDS", "RESULT_COLUMNS", "RESULT_COLUMNS_1_0", "VERDICT_WORDS", "STATE_WORDS", "TEXT_RESULT_COLUMNS", "INTEGER_RESULT_COLUMNS", "FLAG_CODES", "NUMBER_FIELDS", "CHOICE_FIELDS", "MAX_ID", "NumberField", "ChoiceField", "TextField"]

@@ -24,7 +24,8 @@ from pydantic import ValidationError as PydanticError
 from .cells import TRIM_CHARS, is_blank, parse_text, parse_value, trim
 from .errors import FieldError
 from .fields import (CHOICE_FIELDS, CURRENT_FIELDS, DECISIONS_NEEDING_COMMENT, MAX_ID, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS,
-                     NUMBER_FIELDS, READING_NUMBERS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_FIELDS)
+                     NUMBER_FIELDS, READING_CHOICES, READING_NUMBERS, READING_TEST_NUMBERS, READING_TEXTS,
+                     REVIEW_DECISIONS, TAKEN_AT_HELP, TEST_FIELDS, TEXT_FIELDS)
 
 TAKEN_AT_EARLIEST = datetime(2000, 1, 1, tzinfo=timezone.utc)
 TAKEN_AT_AHEAD = timedelta(days=2)   # a tablet clock a little ahead is fine; a year ahead is a typo
@@ -36,7 +37,8 @@ _SHAPE = re.compile(TAKEN_AT_SHAPE)
 UUID_EXAMPLE = "123e4567-e89b-12d3-a456-426614174000"
 NAMEPLATE_NAMES = tuple(f.name for f in NAMEPLATE_NUMBERS + NAMEPLATE_CHOICES)
 RATED_REQUIRED = tuple(f.name for f in NAMEPLATE_NUMBERS if f.required)
-READING_NAMES = tuple(f.name for f in READING_NUMBERS)
+#: The reading's fields in a request: the running reading's numbers, then the sheet's tests (engine 1.2.0).
+READING_NAMES = tuple(f.name for f in READING_NUMBERS) + TEST_FIELDS
 
 # Characters as JSON Schema (ECMA-262) character classes: what text fields refuse, what a tag refuses
 # (its categories, spelled out for the Basic Multilingual Plane: JSON Schema regexes have no \p{..}).
@@ -80,6 +82,11 @@ def _text_schema(name: str, limit: int | None = None) -> dict:
         pattern = f"^[{_TRIM_CLASS}]*{inner}({allowed}*{inner})?[{_TRIM_CLASS}]*$"
         help_text = (spec.help + "; the pattern lists the characters up to U+FFFF; beyond, any character but "
                      "private use is accepted too (an emoji, say)")
+    elif spec.line_pattern:
+        # lines of the declared shape (blank lines between them allowed), spaces around the whole
+        line = spec.line_pattern.lstrip("^").rstrip("$")
+        sp = f"[{_TRIM_CLASS}]*"
+        pattern = f"^{sp}({line})?([\\x20\\t]*\\n[\\x20\\t]*({line})?)*{sp}$"
     elif spec.one_line:
         pattern = f"^[^\\x00-\\x1f\\x7f-\\x9f]*[^{_TRIM_CLASS}\\x00-\\x1f\\x7f-\\x9f][^\\x00-\\x1f\\x7f-\\x9f]*$"
     elif spec.required:
@@ -286,7 +293,7 @@ def _nameplate(optional: bool = False) -> dict:
 
 
 def _readings() -> dict:
-    return {name: _declared(name) for name in READING_NAMES}
+    return {name: (_text(name) if name in TEXT_FIELDS else _declared(name)) for name in READING_NAMES}
 
 
 _NAMEPLATE_REQUIRED = tuple(f.name for f in NAMEPLATE_NUMBERS if f.required)
@@ -390,5 +397,10 @@ def nameplate_values(row: Mapping[str, Any]) -> dict:
 
 
 def reading_values(row: Mapping[str, Any]) -> dict:
-    """The reading's number fields of a row that is not a request body, by the same rules."""
-    return {name: parse_value(name, row.get(name)) for name in READING_NAMES}
+    """The reading's fields of a row that is not a request body, by the same rules."""
+    return given_reading({name: parse_value(name, row.get(name)) for name in READING_NAMES})
+
+
+def given_reading(values: Mapping[str, Any]) -> dict:
+    """A parsed reading as stored: every reading field, None where blank (text too)."""
+    return {name: (values.get(name) if values.get(name) != "" else None) for name in READING_NAMES}

@@ -17,8 +17,8 @@ from pydantic import BaseModel, ConfigDict, Field, create_model
 from pydantic.json_schema import models_json_schema
 
 from .fields import (CHOICE_FIELDS, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS, NUMBER_FIELDS,
-                     READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_RESULT_COLUMNS,
-                     VERDICT_WORDS)
+                     READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_FIELDS,
+                     TEXT_RESULT_COLUMNS, VERDICT_WORDS)
 
 REF_TEMPLATE = "#/components/schemas/{model}"
 
@@ -29,7 +29,15 @@ class _Response(BaseModel):
 
 
 def _declared(name: str) -> tuple[Any, Any]:
-    """A nameplate or reading field as a stored record shows it: the declared type, null where not given."""
+    """A nameplate or reading field as a stored record shows it: the declared type, null where not given
+    (the sheet's tests, engine 1.2.0, are null in readings stored before them)."""
+    kind, text = _declared_type(name)
+    return Optional[kind], Field(description=text)
+
+
+def _declared_type(name: str) -> tuple[Any, str]:
+    if name in TEXT_FIELDS:
+        return str, TEXT_FIELDS[name].help
     if name in CHOICE_FIELDS:
         spec = CHOICE_FIELDS[name]
         kind: Any = Literal[tuple(spec.choices)]  # type: ignore[valid-type]
@@ -38,7 +46,7 @@ def _declared(name: str) -> tuple[Any, Any]:
         spec = NUMBER_FIELDS[name]
         kind = int if spec.integer else float
         text = (spec.help + "; " if spec.help else "") + f"[{spec.unit or '-'}]"
-    return Optional[kind], Field(description=text)
+    return kind, text
 
 
 def _fields(names) -> dict:

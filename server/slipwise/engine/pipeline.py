@@ -25,6 +25,7 @@ from .verdicts import judge
 from .inputs import Parsed, column, column_length
 from .nameplate import group_nameplates, nameplates
 from .readings import parse_readings
+from .sheet import judge_tests, parse_tests, reading_dates
 
 #: Rows per chunk: arrays of this size stay in cache, and chunks run on two threads
 #: (numpy releases the GIL in its loops).
@@ -80,6 +81,8 @@ def _interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None) -
                "rated_kw", "eta_used")
     plate_rows = Parsed({k: plates[k][inverse] for k in per_row})
     readings = parse_readings(cols, n, plate_rows, errors)
+    readings.update(parse_tests(cols, n, errors))
+    readings["_date"] = reading_dates(column(cols, "taken_at", n), n)
 
     out = _empty_results(n) if not errors.ok.all() else {}
     out["engine_version"] = np.full(n, C.ENGINE_VERSION, dtype=object)
@@ -253,6 +256,11 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
     zone_code = supply.iec_zone_code(v_dev, f_dev)
     zone_code = np.where(on_drive, supply.DRIVE_ZONE_CODE, zone_code)
 
+    # --- the sheet's tests (insulation, winding, relay, vibration, rotation, instruments) -------
+    plate_now = {"rated_kw": rated_kw}
+    test_cols, test_states, test_facts = judge_tests(r, lambda name: plate_now[name] if name in plate_now else pl(name),
+                                                     th, r["_date"])
+
     # --- states on the verdict scale and the flags (state "beyond") ------------------------------
     basis_low = np.where(on_drive, torque_low_pct, 100.0 * fused.low)
     basis_high = np.where(on_drive, torque_high_pct, 100.0 * fused.high)
@@ -267,7 +275,7 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
                    margin_low=margin_low, unstable=unstable, zone_code=zone_code, is_nema=pl("is_nema"),
                    on_drive=on_drive, v_dev=v_dev, f_dev=f_dev, voltage_accuracy_pct=r["voltage_accuracy_pct"],
                    vu=vu, iu=iu, starting=starting, starting_low=starting_low,
-                   needs_breakaway=pl("needs_breakaway"))
+                   needs_breakaway=pl("needs_breakaway"), tests=test_states, test_facts=test_facts)
     mask = combination_mask(states.flags, np.where(consistent, -1, outlier), on_drive, at_sync)
     mask |= states.extra_bits
 
@@ -287,7 +295,7 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
         "predicted_current_a": op.current_a, "predicted_power_factor": op.power_factor,
         "breakdown_torque_now_pct": bd_pct, "starting_margin": starting,
         "operating_side_code": np.where(has_point, np.where(stable, 1, 2), 0),
-        **states.columns,
+        **states.columns, **test_cols,
     }
     return res, mask
 

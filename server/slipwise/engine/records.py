@@ -53,6 +53,14 @@ RESULT_DECIMALS: dict[str, int] = {
     "breakdown_margin_low": 2,
     "predicted_current_a": 2,                                           # currents 0.01 A
     "predicted_power_factor": 3,
+    # the sheet's tests (engine 1.2.0)
+    "insulation_resistance_40c_mohm": 2, "insulation_minimum_mohm": 2,   # 0.01 MΩ: minimums are 5, 100, kV + 1
+    "polarization_index": 2, "polarization_index_minimum": 1,           # PI minimums 1.5 and 2.0
+    "insulation_test_voltage_min_v": 0, "insulation_test_voltage_max_v": 0,
+    "winding_resistance_unbalance_pct": 2,                              # threshold 2 %: 0.01 %
+    "winding_resistance_25c_ohm": 6,                                    # a micro-ohmmeter's 1 µΩ
+    "overload_setting_pct": 1, "overload_setting_max_pct": 1, "overload_relay_current_a": 2,
+    "vibration_zone_bc_mm_s": 2,
 }
 _SPEC = {column: f".{places}f" for column, places in RESULT_DECIMALS.items()}
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
@@ -136,7 +144,10 @@ def _py(value):
 #: Text result columns given as null (not "") in a record when blank: not applicable or not judged.
 _BLANK_IS_NULL = frozenset({"error", "error_field", "operating_side", "efficiency_class", "verdict", "load_state",
                             "breakdown_state", "supply_state", "voltage_unbalance_state", "current_unbalance_state",
-                            "starting_state"})
+                            "starting_state", "vibration_zone", "instruments_calibration_expired",
+                            "insulation_state", "polarization_index_state", "insulation_test_voltage_state",
+                            "winding_resistance_state", "overload_setting_state", "vibration_state",
+                            "rotation_state", "instruments_state"})
 
 
 def row_record(out: dict, i: int) -> dict:

@@ -43,13 +43,25 @@ STATE_WORDS = np.array(["", "clear", "at_limit", "beyond"], dtype=object)
 #: The per-quantity state columns.
 STATE_COLUMNS = ("load_state", "breakdown_state", "supply_state", "voltage_unbalance_state",
                  "current_unbalance_state", "starting_state")
-#: Flags whose "beyond" asks for action (safety or supply); underloaded (energy) does not.
+#: Flags whose "beyond" asks for action (safety or supply); underloaded (energy) does not. The sheet's
+#: tests (engine 1.2.0): a winding, relay, vibration or rotation beyond its criterion is put right (or
+#: decided by an engineer) before the motor is signed off.
 ACT_FLAGS = ("overloaded", "over_service_factor", "near_breakdown", "supply_out_of_tolerance",
-             "voltage_unbalance", "current_unbalance", "starting_torque_low")
-#: Bits of the combination mask above :func:`slipwise.physics.flags.combination_mask`'s own:
-#: one per flag code "at the limit", then "no service factor on the nameplate, 1.0 assumed".
-LIMIT_SHIFT = 16
+             "voltage_unbalance", "current_unbalance", "starting_torque_low",
+             "insulation_low", "polarization_index_low", "winding_resistance_unbalance", "overload_setting_high",
+             "overload_setting_low", "vibration_high", "rotation_wrong")
+#: Flags whose "beyond" asks for the readings again: an instrument out of calibration makes its
+#: readings no evidence.
+RETAKE_FLAGS = ("instrument_calibration_expired",)
+#: Bits of the combination mask above :func:`slipwise.physics.flags.combination_mask`'s own (the flags,
+#: 3 bits of outlier, drive, synchronous): one per flag code "at the limit", then "no service factor on
+#: the nameplate, 1.0 assumed", then facts the sheet's words need.
+LIMIT_SHIFT = len(FLAG_ORDER) + 6
 SF_ASSUMED_BIT = LIMIT_SHIFT + len(FLAG_ORDER)
+STAR_DELTA_BIT = SF_ASSUMED_BIT + 1       # the overload relay sits in a star-delta starter's winding circuit
+NEMA_RELAY_BIT = SF_ASSUMED_BIT + 2       # the overload setting was judged by NEC 430.32 (NEMA nameplate)
+TEST_VOLTAGE_BIT = SF_ASSUMED_BIT + 3     # the insulation test voltage is outside IEEE 43 Table 1
+assert TEST_VOLTAGE_BIT < 63
 
 
 @dataclass(frozen=True)
@@ -87,7 +99,8 @@ def supply_state(zone_code, is_nema, on_drive, v_dev, f_dev, voltage_accuracy_pc
 
 def judge(th: Thresholds, *, above, at_sync, consistent, basis_low, basis_high, under_low, under_high,
           service_factor, sf_given, margin_low, unstable, zone_code, is_nema, on_drive, v_dev, f_dev,
-          voltage_accuracy_pct, vu, iu, starting, starting_low, needs_breakaway) -> States:
+          voltage_accuracy_pct, vu, iu, starting, starting_low, needs_breakaway, tests=None,
+          test_facts=None) -> States:
     """States, flags and verdict of valid rows.
 
     Parameters
@@ -107,6 +120,10 @@ def judge(th: Thresholds, *, above, at_sync, consistent, basis_low, basis_high, 
         Pessimistic end of the breakdown margin [-].
     starting, starting_low : array
         Starting margin, central and at the top of the load band [-].
+    tests : dict of str -> array, optional
+        The sheet's tests: state per flag code (:func:`slipwise.engine.sheet.judge_tests`).
+    test_facts : dict of str -> array of bool, optional
+        ``star_delta``, ``nema``, ``test_voltage_off``: facts the words of the tests need.
     Other parameters are the pipeline's arrays of the same name.
     """
     not_above = ~np.asarray(above, dtype=bool)
@@ -125,6 +142,10 @@ def judge(th: Thresholds, *, above, at_sync, consistent, basis_low, basis_high, 
     by_code = {"overloaded": over, "over_service_factor": over_sf, "near_breakdown": breakdown,
                "underloaded": under, "supply_out_of_tolerance": supply_st, "voltage_unbalance": v_unb,
                "current_unbalance": i_unb, "starting_torque_low": start}
+    n = len(not_above)
+    for code in FLAG_ORDER:
+        if code in ACT_FLAGS + RETAKE_FLAGS and code not in by_code:
+            by_code[code] = np.asarray((tests or {}).get(code, np.full(n, V.NOT_JUDGED)), dtype=int)
     flags = {code: state == V.BEYOND for code, state in by_code.items()}
     flags["speed_above_synchronous"] = np.asarray(above, dtype=bool)
     flags["readings_inconsistent"] = inconsistent
@@ -136,14 +157,23 @@ def judge(th: Thresholds, *, above, at_sync, consistent, basis_low, basis_high, 
             extra |= (by_code[code] == V.AT_LIMIT).astype(np.int64) << (LIMIT_SHIFT + bit)
     sf_assumed = ~np.asarray(sf_given, dtype=bool) & (over >= V.AT_LIMIT)
     extra |= sf_assumed.astype(np.int64) << SF_ASSUMED_BIT
+    facts = test_facts or {}
+    for key, bit in (("star_delta", STAR_DELTA_BIT), ("nema", NEMA_RELAY_BIT), ("test_voltage_off", TEST_VOLTAGE_BIT)):
+        if key in facts:
+            extra |= np.asarray(facts[key], dtype=bool).astype(np.int64) << bit
 
     act = np.asarray(above, dtype=bool) & ~np.asarray(at_sync, dtype=bool)   # generating on a loaded shaft
     for code in ACT_FLAGS:
         act = act | flags[code]
+    retake = inconsistent.copy()
+    for code in RETAKE_FLAGS:
+        retake = retake | flags[code]
     watch = flags["underloaded"] | np.asarray(at_sync, dtype=bool)
     for state in by_code.values():
         watch = watch | (state == V.AT_LIMIT)
-    verdict = np.where(act, "act", np.where(inconsistent, "retake", np.where(watch, "watch", "sound")))
+    if "test_voltage_off" in facts:   # an insulation reading not comparable with IEEE 43's minimums
+        watch = watch | np.asarray(facts["test_voltage_off"], dtype=bool)
+    verdict = np.where(act, "act", np.where(retake, "retake", np.where(watch, "watch", "sound")))
 
     load_state = np.maximum(np.maximum(over, over_sf), under)
     columns = {"verdict": verdict.astype(object)}
@@ -157,3 +187,10 @@ def decode_extra(mask: int) -> tuple[tuple[str, ...], bool]:
     m = int(mask)
     limit = tuple(code for bit, code in enumerate(FLAG_ORDER) if m >> (LIMIT_SHIFT + bit) & 1)
     return limit, bool(m >> SF_ASSUMED_BIT & 1)
+
+
+def decode_test_facts(mask: int) -> dict:
+    """``star_delta``, ``nema``, ``test_voltage_off`` from a mask (see :data:`STAR_DELTA_BIT`)."""
+    m = int(mask)
+    return {"star_delta": bool(m >> STAR_DELTA_BIT & 1), "nema": bool(m >> NEMA_RELAY_BIT & 1),
+            "test_voltage_off": bool(m >> TEST_VOLTAGE_BIT & 1)}

@@ -10,10 +10,15 @@ from dataclasses import dataclass, fields
 
 import numpy as np
 
+from .winding import DEFAULT_UNBALANCE_LIMIT_PCT
+
 FLAG_ORDER = (
     "speed_above_synchronous", "overloaded", "over_service_factor", "near_breakdown", "underloaded",
     "supply_out_of_tolerance", "voltage_unbalance", "current_unbalance", "readings_inconsistent",
     "starting_torque_low",
+    # the commissioning sheet's tests (engine 1.2.0)
+    "insulation_low", "polarization_index_low", "winding_resistance_unbalance", "overload_setting_high",
+    "overload_setting_low", "vibration_high", "rotation_wrong", "instrument_calibration_expired",
 )
 
 
@@ -47,6 +52,10 @@ class Thresholds:
         Locked-rotor torque over the breakaway torque the load needs, below
         which a load that needs breakaway torque is flagged [-]; 1.3 is
         common practice (it covers a 10 % voltage dip at start, 0.9^2 = 0.81).
+    winding_resistance_unbalance_pct : float
+        Largest unbalance of the three line-to-line winding resistances [%];
+        2 % is a common acceptance figure (common practice; no standard found
+        that states it for motors; :mod:`slipwise.physics.winding`).
     """
 
     underloaded_pct: float = 40.0
@@ -56,13 +65,14 @@ class Thresholds:
     current_unbalance_pct: float = 10.0
     inconsistency_factor: float = 1.0
     starting_margin: float = 1.3
+    winding_resistance_unbalance_pct: float = DEFAULT_UNBALANCE_LIMIT_PCT
 
     #: allowed ranges for overrides
     RANGES = {
         "underloaded_pct": (0.0, 100.0), "overloaded_pct": (50.0, 200.0),
         "near_breakdown_margin": (1.0, 5.0), "voltage_unbalance_pct": (0.1, 10.0),
         "current_unbalance_pct": (1.0, 50.0), "inconsistency_factor": (0.25, 5.0),
-        "starting_margin": (1.0, 3.0),
+        "starting_margin": (1.0, 3.0), "winding_resistance_unbalance_pct": (0.5, 20.0),
     }
 
     @classmethod

@@ -157,7 +157,8 @@ def overload_setting(overload_setting_a, full_load_current_a, starter, nameplate
     if np.any(setting <= 0):
         raise ValueError(f"overload_setting_a must be positive; got {overload_setting_a!r}")
     seen = relay_current_a(full_load_current_a, starter, relay_in_winding)
-    pct = 100.0 * setting / seen
+    # rounded far below a dial's resolution: 40.95 A on 39 A is 105 % exactly, not 105.00000000000001 %
+    pct = np.round(100.0 * setting / seen, 9)
     limit = setting_limit_pct(nameplate_standard, service_factor, temperature_rise_c)
     high = np.where(pct > limit, BEYOND, np.where(pct >= limit - DIAL_BAND_PCT, AT_LIMIT, CLEAR))
     trip_pct = 100.0 / TRIP_MULTIPLE

@@ -131,7 +131,8 @@ def winding_resistance(winding_resistance_l12_ohm, winding_resistance_l23_ohm, w
         raise ValueError(f"unbalance_limit_pct must be positive; got {unbalance_limit_pct!r}")
     a_pct = 100.0 * accuracy_fraction(meter_accuracy_pct, "meter_accuracy_pct")
     mean = r.mean(axis=0)
-    unbalance = 100.0 * np.abs(r - mean).max(axis=0) / mean
+    # rounded far below any ohmmeter's resolution: 1.02/1.00/0.98 is 2 % exactly, not 2.0000000000000018 %
+    unbalance = np.round(100.0 * np.abs(r - mean).max(axis=0) / mean, 9)
     return {
         "winding_resistance_unbalance_pct": unbalance,
         "winding_resistance_ref_ohm": resistance_at_temperature_ohm(

@@ -13,6 +13,7 @@ import math
 from dataclasses import dataclass
 from typing import Any, Mapping
 
+from slipwise.contract import TEST_FIELDS
 from slipwise.store.motors import REVISION_FIELDS
 
 _NOT_FOR_ENGINE = ("location", "description")
@@ -48,9 +49,11 @@ class Submission:
     taken_at_utc: Any
 
     def content_hash(self, technician_id: int) -> str:
+        # the sheet's tests (engine 1.2.0) count only when given: a reading without them hashes as it did
+        # before them, so an entry queued on a tablet before the upgrade replays as the same reading
+        inputs = {k: self.inputs[k] for k in sorted(self.inputs) if k not in TEST_FIELDS or self.inputs[k] is not None}
         content = {"client_id": self.client_id, "motor_id": self.motor_id, "supersedes": self.supersedes,
-                   "technician_id": technician_id, "taken_at": self.taken_at,
-                   "inputs": {k: self.inputs[k] for k in sorted(self.inputs)}}
+                   "technician_id": technician_id, "taken_at": self.taken_at, "inputs": inputs}
         return hashlib.sha256(to_json(content).encode("utf-8")).hexdigest()
 
 

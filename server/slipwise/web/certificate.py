@@ -112,6 +112,17 @@ def _state(flag: str | None, flags: set[str], limit_flags: set[str], value: Any)
     return "clear" if flag else "not judged"
 
 
+_STATE_WORDS = {"clear": "clear", "at_limit": "at the limit", "beyond": "beyond", "": "not judged"}
+
+
+def _judged(result: Mapping[str, Any], column: str, fallback: str) -> str:
+    """The engine's own state for a test (engine 1.2.0 and later), else the state read from the flags."""
+    state = result.get(column)
+    if state is None or fallback == NOT_RECORDED:
+        return fallback
+    return _STATE_WORDS.get(state, state)
+
+
 def test_rows(inputs: Mapping[str, Any], result: Mapping[str, Any]) -> list[tuple[str, str, str, str, str]]:
     """The de-energised tests, rotation and vibration as (test, value, criterion, source, state).
 
@@ -164,24 +175,29 @@ def test_rows(inputs: Mapping[str, Any], result: Mapping[str, Any]) -> list[tupl
          f"at least {_num(ins_min, 'MΩ')} at 40 °C" if ins_min is not None else
          "at least the recommended minimum for the winding at 40 °C",
          "IEEE 43 (recommended minimum insulation resistance)",
-         _state("insulation_low", flags, limits, ins_40 if ins_40 is not None else ins_1)),
+         _judged(result, "insulation_state", _state("insulation_low", flags, limits, ins_40 if ins_40 is not None else ins_1))),
         ("Polarization index", _num(pi, "", 2) + (pi_detail if pi is not None else ""),
-         "at least 2.0 (class B, F, H) or 1.5 (class A); not judged above 5,000 MΩ at 1 min",
-         "IEEE 43 (polarization index)", _state("polarization_index_low", flags, limits, pi)),
+         (f"at least {_num(result.get('polarization_index_minimum'), '', 1)}; " if result.get("polarization_index_minimum") else
+          "at least 2.0 (class B, F, H) or 1.5 (class A); ") + "not judged above 5,000 MΩ at 1 min",
+         "IEEE 43 (polarization index)",
+         _judged(result, "polarization_index_state", _state("polarization_index_low", flags, limits, pi))),
         ("Winding resistance balance", _num(unbalance, "%", 2) + (res_detail if unbalance is not None else ""),
          "largest deviation from the mean within the acceptance figure (2 % common)",
          "common acceptance figure (common practice)",
-         _state("winding_resistance_unbalance", flags, limits, unbalance)),
+         _judged(result, "winding_resistance_state", _state("winding_resistance_unbalance", flags, limits, unbalance))),
         ("Overload relay setting", _num(overload, "% of the current the relay sees", 0)
          + (ol_detail if overload is not None else ""),
-         "NEMA nameplate: at most 125 % (SF ≥ 1.15 or rise ≤ 40 °C), else 115 %; IEC nameplate: rated current",
-         "NEC 430.32; IEC practice", _state("overload_setting_high", flags, limits, overload)),
+         (f"at most {_num(result.get('overload_setting_max_pct'), '%', 0)} of the current the relay sees; "
+          if result.get("overload_setting_max_pct") is not None else "")
+         + "NEMA nameplate: 125 % (SF ≥ 1.15 or rise ≤ 40 °C), else 115 %; IEC nameplate: rated current",
+         "NEC 430.32; IEC practice",
+         _judged(result, "overload_setting_state", _state("overload_setting_high", flags, limits, overload))),
         ("Vibration", vib_value, "zone A or B for the machine's group and foundation",
          "ISO 10816-3 / ISO 20816-3 (ISO 10816-1 class I below 15 kW)",
-         _state("vibration_high", flags, limits, zone)),
+         _judged(result, "vibration_state", _state("vibration_high", flags, limits, zone))),
         ("Direction of rotation", _num(rotation) if rotation is not None else NOT_RECORDED,
          "as marked on the driven machine", "common practice",
-         _state("rotation_wrong", flags, limits, rotation)),
+         _judged(result, "rotation_state", _state("rotation_wrong", flags, limits, rotation))),
     ]
 
 

@@ -40,7 +40,7 @@ from typing import Any, Iterable, Iterator, Mapping
 
 from flask import Blueprint, Response
 
-from slipwise.contract import NAMEPLATE_FIELDS, READING_FIELDS, RESULT_COLUMNS
+from slipwise.contract import NAMEPLATE_FIELDS, READING_FIELDS, RESULT_COLUMNS, TEST_FIELDS
 from slipwise.engine.records import cautions_cell, neutralise, result_cells
 from slipwise.services import readings as services
 
@@ -52,21 +52,21 @@ bp = Blueprint("export", __name__)
 
 _NAMEPLATE = tuple(f for f in NAMEPLATE_FIELDS if f != "tag")
 _NAMEPLATE_HEADERS = tuple(("nameplate_" + f) if f in RESULT_COLUMNS else f for f in _NAMEPLATE)
-_READING_NUMBERS = tuple(f for f in READING_FIELDS if f != "taken_at")
+_READING_NUMBERS = tuple(f for f in READING_FIELDS if f != "taken_at" and f not in TEST_FIELDS)
 _TAIL = ("cautions", "technician", "technician_name", "received_at", "supersedes", "superseded_by",
          "review_decision", "review_comment", "reviewer", "reviewed_at", "reviewer_name", "review_history")
 
 EXPORT_COLUMNS: tuple[str, ...] = (("reading_id", "client_id", "site", "tag", "location", "description",
                                     "motor_revision") + _NAMEPLATE_HEADERS + _READING_NUMBERS + ("taken_at",)
-                                   + RESULT_COLUMNS + _TAIL)
+                                   + TEST_FIELDS + RESULT_COLUMNS + _TAIL)
 _ROWS_PER_CHUNK = 1000
 __all__ = ["EXPORT_COLUMNS", "export_row", "csv_chunks", "neutralise"]
 
 _ENGINE_AT = EXPORT_COLUMNS.index("engine_version")
 # cells outside the result part that can hold free text (the others are numbers, ids or ISO times)
 _TEXT_AT = tuple(EXPORT_COLUMNS.index(c) for c in (
-    "site", "tag", "location", "description", "technician", "technician_name", "review_comment", "reviewer",
-    "reviewer_name", "review_history"))
+    "site", "tag", "location", "description", "instruments", "notes", "technician", "technician_name", "review_comment",
+    "reviewer", "reviewer_name", "review_history"))
 REVIEW_SEPARATOR = " | "
 
 
@@ -88,7 +88,7 @@ def export_row(row: Mapping[str, Any], history: Iterable[Mapping[str, Any]] = ()
     reviewed = row["reviewed_at"]
     cells = [row["id"], row["client_id"], row["site"], row["tag"], row["location"], row["description"],
              row["motor_revision"], *[row[f] for f in _NAMEPLATE], *[iget(f) for f in _READING_NUMBERS],
-             row["taken_at"], *result_cells(result), cautions_cell(result), row["technician"],
+             row["taken_at"], *[iget(f) for f in TEST_FIELDS], *result_cells(result), cautions_cell(result), row["technician"],
              row["technician_name"], row["received_at"].isoformat(), row["supersedes_id"], row["superseded_by"],
              row["decision"], row["comment"], row["reviewer"], reviewed.isoformat() if reviewed else None,
              row["reviewer_name"] or None, review_history_cell(history)]

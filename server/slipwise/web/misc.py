@@ -7,7 +7,7 @@ import json
 from flask import Blueprint, Response, jsonify
 
 from slipwise.contract import ENGINE_VERSION
-from slipwise.contract.models import READING_NAMES, InterpretInput, parse_body, taken_at
+from slipwise.contract.models import READING_NAMES, given_reading, InterpretInput, parse_body, taken_at
 from slipwise.services import audit as audit_services
 from slipwise.services import readings as services
 from slipwise.services.records import to_json
@@ -42,7 +42,7 @@ def interpret_without_storing():
     st = state()
     body = json_body()
     p = parse_body(InterpretInput, body)   # motor_id or a nameplate, not both (a blank field is no field)
-    reading = {name: p[name] for name in READING_NAMES}
+    reading = given_reading(p)
     when, _, _ = taken_at(p["taken_at"], utcnow())
     if p["motor_id"] is not None:
         result = services.interpret_reading(st.db, reading, when, motor_id=p["motor_id"], thresholds=st.thresholds)

@@ -10,7 +10,7 @@ from urllib.parse import urlencode
 from flask import Blueprint, Response, g, request, url_for
 
 from slipwise.contract import MAX_ID
-from slipwise.contract.models import READING_NAMES, ReadingInput, ReviewInput, parse_body, taken_at
+from slipwise.contract.models import READING_NAMES, given_reading, ReadingInput, ReviewInput, parse_body, taken_at
 from slipwise.services import readings as services
 from slipwise.services.interpretation import torque_speed, with_stored_result
 from slipwise.services.records import Submission
@@ -42,7 +42,7 @@ def _json(text: str, status: int = 200) -> Response:
 
 def parse_submission(body: dict) -> Submission:
     p = parse_body(ReadingInput, body)
-    inputs = {name: p[name] for name in READING_NAMES}
+    inputs = given_reading(p)
     when, taken_date, taken_at_utc = taken_at(p["taken_at"], utcnow())
     return Submission(p["client_id"], p["motor_id"], p["supersedes"], inputs, when, taken_date, taken_at_utc)
 

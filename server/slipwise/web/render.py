@@ -14,7 +14,7 @@ import math
 import json
 from typing import Any, Iterable, Mapping
 
-from slipwise.contract import ENGINE_VERSION, RESULT_COLUMNS
+from slipwise.contract import ENGINE_VERSION, READING_FIELDS, RESULT_COLUMNS
 from slipwise.services.motors import MotorRecord
 from slipwise.services.readings import ReadingRecord, Review
 from slipwise.store.motors import REVISION_FIELDS
@@ -41,7 +41,18 @@ def reading_json(row: Mapping[str, Any]) -> str:
             "received_at": row["received_at"].isoformat(), "engine_version": row["engine_version"],
             "supersedes": row["supersedes_id"], "superseded_by": row["superseded_by"],
             "fingerprint": row["fingerprint"], "review": _review(row, "review_fingerprint")}
-    return _dumps(head)[:-1] + ',"inputs":' + row["inputs"] + ',"result":' + served_result_text(row) + "}"
+    return _dumps(head)[:-1] + ',"inputs":' + served_inputs_text(row) + ',"result":' + served_result_text(row) + "}"
+
+
+def served_inputs_text(row: Mapping[str, Any]) -> str:
+    """The stored inputs as the API serves them: every reading field of this release, null where a reading
+    stored before the field existed (the sheet's tests, engine 1.2.0) has none."""
+    text = row["inputs"]
+    if row["engine_version"] == ENGINE_VERSION:
+        return text
+    inputs = json.loads(text)
+    missing = [f for f in READING_FIELDS if f not in inputs]
+    return _dumps({**inputs, **{f: None for f in missing}}) if missing else text
 
 
 def served_result_text(row: Mapping[str, Any]) -> str:
