@@ -86,6 +86,7 @@ export function provisional(record) {
     current_unbalance_pct: maxDeviationUnbalancePct(record.current_l1_a, record.current_l2_a, record.current_l3_a),
     notes,
     has_basis: hasBasis(record),
+    basis_refused: record.provisional_basis === null, // the server found no circuit for this nameplate
     judged: null,
   };
   if (out.has_basis) out.judged = judgeReading(record.provisional_basis, record);

@@ -183,9 +183,9 @@ export function provisionalBlock(p, heading = "Result on this device") {
   const v = j ? verdict(j) : null;
   const limits = j ? j.limit_flags.filter((f) => !j.flags.includes(f)) : [];
   const band = j && j.load_low_pct != null ? `band ${fmt(j.load_low_pct, 0)}–${fmt(j.load_high_pct, 0)} %` : "no band";
-  const why = !p.has_basis
-    ? "No provisional verdict: this tablet holds no nameplate data worked out by the server for this motor. Open the motor list once while online."
-    : "No provisional verdict yet: it needs the frequency, the speed, a current and (on mains) a voltage.";
+  const why = p.has_basis ? "No provisional verdict yet: it needs the frequency, the speed, a current and (on mains) a voltage."
+    : p.basis_refused ? "No provisional verdict for this motor: the server could not fit a motor model to its nameplate. Check the nameplate."
+      : "No provisional verdict: this tablet holds no nameplate data worked out by the server for this motor. Open the motor list once while online.";
   return h("section", { class: "panel", "aria-labelledby": "prov-h", id: "provisional" },
     h("h2", { id: "prov-h" }, heading, " ", h("span", { class: "provisional-label" }, "provisional")),
     j ? h("p", { class: "verdict-head" },

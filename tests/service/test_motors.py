@@ -88,3 +88,12 @@ def test_motor_carries_its_provisional_basis(app, sup, tech, motor):
     r = sup.put(f"/api/v1/motors/{motor['id']}", json={**MOTOR, "rated_current_a": 31.0, "revision": 1}).get_json()
     assert r["provisional_basis"]["rated_current_a"] == 31.0
     assert r["provisional_basis"]["no_load_current_a"] != b["no_load_current_a"]
+
+
+def test_a_nameplate_without_a_circuit_has_no_basis(sup):
+    """0.08 hp at 400 V and 21.8 A: accepted as typed, but no circuit fits it; the page gets no basis (and
+    so gives no provisional verdict) rather than a basis with holes."""
+    body = {**MOTOR, "tag": "ODD-1", "rated_power_kw": None, "rated_power_hp": 0.08, "rated_current_a": 21.8}
+    r = sup.post("/api/v1/motors", json=body)
+    assert r.status_code == 201 and r.get_json()["provisional_basis"] is None
+    assert sup.get("/api/v1/motors").get_json()["motors"][0]["provisional_basis"] is None

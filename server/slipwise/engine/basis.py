@@ -91,7 +91,8 @@ def _work_out(records: list, th: Thresholds) -> list:
     n = len(records)
     cols = {k: np.array([{**r, "tag": r.get("tag") or "basis"}.get(k) for r in records], dtype=object)
             for k in C.NAMEPLATE_FIELDS}
-    plates, errors = nameplates(cols, n)
+    with np.errstate(all="ignore"):  # as the pipeline: a nameplate that fits no circuit gives NaN, checked below
+        plates, _ = nameplates(cols, n)
     out: list = [None] * n
     sub, circuit, budgets, i0_r = plates["_valid"], plates["_circuit"], plates["_budgets"], plates["_i0_rated"]
     share = typical.FIXED_LOSS_SHARE
@@ -141,4 +142,13 @@ def _work_out(records: list, th: Thresholds) -> list:
             "thresholds": th_dict,
             "reading_defaults": defaults,
         }
+        if not _complete(out[int(row)]):
+            out[int(row)] = None
     return out
+
+
+def _complete(basis: dict) -> bool:
+    """Every number is there (only ``rc_ohm`` may be None): a nameplate the engine accepts but cannot fit
+    (its efficiency or circuit undefined) gives no basis, and the page gives no provisional verdict."""
+    values = [v for k, v in basis.items() if k != "circuit"] + [v for k, v in basis["circuit"].items() if k != "rc_ohm"]
+    return all(v is not None for v in values)
