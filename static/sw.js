@@ -4,7 +4,7 @@
 // deletes the caches of older versions (the outbox lives in IndexedDB and is never touched here).
 // API calls always go to the network; nothing with a status >= 400 is ever cached.
 
-const VERSION = "1.0.18"; // raise with every change to a precached file
+const VERSION = "1.0.19"; // raise with every change to a precached file
 const CACHE = `slipwise-page-${VERSION}`;
 const PRECACHE = [
   "/",
@@ -25,6 +25,7 @@ const PRECACHE = [
   "/js/shell.js",
   "/js/supervisor.js",
   "/js/technician.js",
+  "/js/verdict.js",
   "/manifest.webmanifest",
   "/icons/slipwise.svg",
   "/icons/slipwise-192.png",

@@ -1,9 +1,13 @@
 // Provisional result, computed in the browser while the server's interpretation is not yet in.
 //
-// Only the parts that need no motor model: synchronous speed, slip, the slip-method load with
+// The parts that need no motor model: synchronous speed, slip, the slip-method load with
 // voltage (flux) compensation, and NEMA maximum-deviation unbalance. The same arithmetic as
 // server/physics (speed.py, load.slip_method, supply.max_deviation_unbalance_pct); the shared
 // vectors in tests/vectors/provisional.json are checked against both so the two cannot drift.
+// With the motor's provisional basis (cached with the motor list) also the provisional verdict
+// and its band, by the engine's rules (verdict.js, checked by tests/vectors/provisional_verdict.json).
+
+import { hasBasis, judgeReading } from "./verdict.js";
 
 const RPM_PER_HZ_PER_POLE = 120; // 60 s/min times 2 poles per pole pair
 
@@ -60,7 +64,9 @@ function finite(x) {
  *   poles (optional), supply ("mains" | "drive"), frequency_hz, speed_rpm, voltage_l12_v/_l23_v/_l31_v,
  *   current_l1_a/_l2_a/_l3_a.
  * @returns {object} poles, sync_speed_rpm, slip_pct, slip_rpm, load_slip_pct, voltage_unbalance_pct,
- *   current_unbalance_pct (null where not computable) and notes (plain sentences on what is missing).
+ *   current_unbalance_pct (null where not computable), notes (plain sentences on what is missing), and
+ *   judged: the provisional verdict (verdict.js judgeReading) where the record carries the motor's
+ *   provisional_basis and the reading can be judged, else null; has_basis: whether it carries one.
  */
 export function provisional(record) {
   const notes = [];
@@ -79,7 +85,11 @@ export function provisional(record) {
     voltage_unbalance_pct: maxDeviationUnbalancePct(record.voltage_l12_v, record.voltage_l23_v, record.voltage_l31_v),
     current_unbalance_pct: maxDeviationUnbalancePct(record.current_l1_a, record.current_l2_a, record.current_l3_a),
     notes,
+    has_basis: hasBasis(record),
+    basis_refused: record.provisional_basis === null, // the server found no circuit for this nameplate
+    judged: null,
   };
+  if (out.has_basis) out.judged = judgeReading(record.provisional_basis, record);
   if (Number.isNaN(poles)) {
     notes.push("No pole count: check the rated speed and frequency.");
     return out;

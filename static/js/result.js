@@ -187,16 +187,57 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
   return out;
 }
 
-/** The browser's provisional values (static/js/provisional.js), clearly labelled as such. */
-export function provisionalBlock(p, heading = "Provisional result") {
+/**
+ * The result worked out on this device (static/js/provisional.js, verdict.js) before the server's: with the
+ * motor's provisional basis it carries the verdict and its band by the engine's rules; without one, the
+ * slip and unbalance alone. The heading says "provisional" once, as its label.
+ */
+export function provisionalBlock(p, heading = "Result on this device") {
+  const j = p.judged;
+  const v = j ? verdict(j) : null;
+  const limits = j ? j.limit_flags.filter((f) => !j.flags.includes(f)) : [];
+  const band = j && j.load_low_pct != null ? `band ${fmt(j.load_low_pct, 0)}–${fmt(j.load_high_pct, 0)} %` : "no band";
+  const why = p.has_basis ? "No provisional verdict yet: it needs the frequency, the speed, a current and (on mains) a voltage."
+    : p.basis_refused ? "No provisional verdict for this motor: the server could not fit a motor model to its nameplate. Check the nameplate."
+      : "No provisional verdict: this tablet holds no nameplate data worked out by the server for this motor. Open the motor list once while online.";
   return h("section", { class: "panel", "aria-labelledby": "prov-h", id: "provisional" },
     h("h2", { id: "prov-h" }, heading, " ", h("span", { class: "provisional-label" }, "provisional")),
-    h("p", { class: "muted" }, "Computed on this device from the nameplate and the readings. The server's interpretation (load band, efficiency, breakdown margin, findings) replaces it when the reading is sent."),
+    j ? h("p", { class: "verdict-head" },
+      h("span", { class: ["verdict", v.cls], id: "prov-verdict", dataset: { verdict: v.word } }, v.text),
+      h("span", { class: "verdict-meaning" }, v.meaning)) : h("p", { id: "prov-no-verdict" }, why),
+    j ? h("p", { id: "prov-load" }, h("strong", {}, `Load ${qty(j.load_pct, 0, "%")}`), " of rated output, ", band) : null,
+    j && (j.flags.length || limits.length) ? h("ul", { class: "findings", id: "prov-flags" },
+      j.flags.map((f) => h("li", { dataset: { flag: f, state: "beyond" } }, FLAG_WORDS[f] || f)),
+      limits.map((f) => h("li", { dataset: { flag: f, state: "at_limit" } }, "At the limit: ", FLAG_WORDS[f] || f))) : null,
     h("dl", { class: "facts" },
+      j ? fact("Breakdown margin", times(j.breakdown_margin), j.breakdown_margin_low != null ? `at least ${times(j.breakdown_margin_low)}` : "", "breakdown_margin") : null,
+      j ? fact("Supply zone", j.supply_zone || "–", "IEC 60034-1", "supply_zone") : null,
       fact("Slip-method load", p.load_slip_pct == null ? "–" : `${fmt(p.load_slip_pct, 1)} %`, "of rated output", "load_slip_pct"),
       fact("Slip", p.slip_pct == null ? "–" : `${fmt(p.slip_pct, 2)} %`, p.slip_rpm == null ? "" : `${fmt(p.slip_rpm, 1)} rpm`, "slip_pct"),
       fact("Synchronous speed", p.sync_speed_rpm == null ? "–" : `${fmt(p.sync_speed_rpm, 0)} rpm`, p.poles ? `${p.poles} poles` : "", "sync_speed_rpm"),
       fact("Voltage unbalance", p.voltage_unbalance_pct == null ? "–" : `${fmt(p.voltage_unbalance_pct, 2)} %`, "NEMA max. deviation", "voltage_unbalance_pct"),
       fact("Current unbalance", p.current_unbalance_pct == null ? "–" : `${fmt(p.current_unbalance_pct, 1)} %`, "NEMA max. deviation", "current_unbalance_pct")),
+    h("p", { class: "muted" }, j
+      ? "Worked out on this device by the server's rules, from this motor's nameplate data saved with the motor list. The server's result replaces it when the reading is stored."
+      : "Computed on this device from the nameplate and the readings. The server's result replaces it when the reading is stored."),
     p.notes && p.notes.length ? h("ul", {}, p.notes.map((n) => h("li", {}, n))) : null);
+}
+
+/**
+ * What the server's stored result says against the provisional verdict shown before it, in words:
+ * "The server confirms: watch." or "The server's verdict differs: act — see why" (a link to the reading).
+ */
+export function serverVerdictNote(provisionalWord, reading) {
+  const server = verdict(reading.result);
+  const same = provisionalWord === server.word;
+  const link = h("a", { href: `#/reading/${reading.id}`, id: "see-why" }, same ? "Open the stored reading" : "see why");
+  return h("section", { class: ["panel", same ? null : "retake"], id: "verdict-change", role: "status",
+    dataset: { changed: provisionalWord ? String(!same) : "unknown" } },
+  h("h2", {}, "The server's verdict"),
+  provisionalWord
+    ? h("p", { class: "verdict-head" }, same ? "The server confirms: " : "The server's verdict differs: ",
+      h("span", { class: ["verdict", server.cls], dataset: { verdict: server.word } }, server.text),
+      same ? " " : " — ", link, same ? null : ` (this device said ${VERDICTS[provisionalWord].text.toLowerCase()}).`)
+    : h("p", { class: "verdict-head" }, "The server's verdict: ",
+      h("span", { class: ["verdict", server.cls], dataset: { verdict: server.word } }, server.text), " ", link));
 }

@@ -8,7 +8,7 @@ import { $, clear, fmt, h, localDate, localIso, showTime, uuid } from "./dom.js"
 import { CHOICE_WORDS, crossCheck, FIELD, fmtRange, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, parseField, parseText, READING_NUMBERS, TEXT_FIELDS } from "./fields.js";
 import * as outbox from "./outbox.js";
 import { provisional } from "./provisional.js";
-import { provisionalBlock, resultBlocks, reviewWord, SAFETY_NOTE } from "./result.js";
+import { provisionalBlock, resultBlocks, reviewWord, SAFETY_NOTE, serverVerdictNote } from "./result.js";
 import { go, routeIsCurrent } from "./router.js";
 import { askForBackgroundSync, sendReading, sync } from "./sending.js";
 import { sheetForm } from "./sheet.js";
@@ -367,6 +367,24 @@ export async function renderPending(el, clientId, seq) {
     clear(status, h("span", { class: "state waiting" }, "kept on this tablet"), " ", why,
       " ", h("a", { class: "btn btn-quiet", href: "#/motors" }, "Next motor"));
   }
+  if (entry.state !== "waiting") return;
+  // The server's result arriving while this screen is open (the network came back and the outbox sent
+  // it): shown here, in place, saying whether the server's verdict is the one this device gave.
+  const onSent = (ev) => {
+    if (!routeIsCurrent(seq)) return window.removeEventListener("outbox-sent", onSent);
+    if (!ev.detail || ev.detail.client_id !== clientId || !ev.detail.reading) return;
+    window.removeEventListener("outbox-sent", onSent);
+    const reading = ev.detail.reading;
+    clear(status, h("span", { class: "state sent" }, "stored by the server"), ` as reading ${reading.id}.`, " ",
+      h("a", { class: "btn btn-quiet", href: "#/motors" }, "Next motor"));
+    const earlier = provisionalBlock(prov, "What this device said");
+    clear(el, h("h1", { tabindex: "-1" }, entry.tag), h("p", { class: "muted" }, `${entry.site} · taken ${showTime(entry.body.taken_at)}`),
+      status, serverVerdictNote(prov.judged ? prov.judged.verdict : null, reading),
+      resultBlocks(reading.result, { serviceFactor: (entry.nameplate && entry.nameplate.service_factor) || 1 }),
+      h("details", { class: "panel", id: "provisional-before" }, h("summary", {}, "What this device said before the server answered"), earlier),
+      h("p", { class: "muted" }, SAFETY_NOTE));
+  };
+  window.addEventListener("outbox-sent", onSent);
 }
 
 function entryWhy(entry) {

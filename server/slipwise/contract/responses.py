@@ -186,10 +186,67 @@ class ReviewCreated(_Response):
 _NAMEPLATE = _fields(f for f in NAMEPLATE_FIELDS if f != "tag")
 _PLACE = {"location": (str, ...), "description": (str, ...)}
 
+
+
+class CircuitParameters(_Response):
+    """The fitted per-phase equivalent circuit (equivalent star, referred to the stator; physics.circuit)."""
+
+    r1_ohm: float
+    x1_ohm: float
+    r2_ohm: float = Field(description="rotor resistance at zero slip [ohm]")
+    x2_ohm: float
+    xm_ohm: float
+    rc_ohm: Optional[float] = Field(description="core-loss resistance [ohm]; null where no core loss is modelled")
+    r2_rise: float = Field(description="deep-bar rise k of R2(s) = R2 (1 + k s^2) [-]")
+    rated_frequency_hz: float
+    poles: float
+
+
+class ProvisionalBasis(_Response):
+    """What the page needs to judge a reading of this motor while offline, worked out by the engine once per
+    nameplate revision (slipwise.engine.basis): the rated point as derived, the fitted circuit and its no-load
+    current, the rated loss split, the breakdown torque band, the starting torques, the thresholds in force and
+    the reading fields' defaults. The page's rules (static/js/verdict.js) are checked against the engine's."""
+
+    version: int = Field(description="layout of this object")
+    engine_version: str
+    poles: float
+    sync_rated_rpm: float
+    rated_slip: float = Field(description="[pu]")
+    rated_speed_rpm: float
+    rated_kw: float
+    rated_voltage_v: float
+    rated_current_a: float
+    rated_frequency_hz: float
+    efficiency_used: float = Field(description="rated efficiency, given or assumed [pu]")
+    supply: str
+    design: str
+    driven_load: str
+    is_nema: bool
+    service_factor: float
+    service_factor_given: bool
+    no_load_current_a: float = Field(description="the fitted circuit's no-load current at rated voltage and frequency")
+    saturation_exponents: dict[str, list[float]] = Field(
+        description="k of I0 / I0r = flux^k (central, low, high) above and below rated flux")
+    losses_w: dict[str, float] = Field(description="rated-point core, friction_windage and stator losses [W]")
+    fixed_loss_band: list[float] = Field(description="multipliers bounding the fixed losses [-]")
+    breakdown_torque_pct: float = Field(description="breakdown torque at rated voltage [% of rated torque]")
+    breakdown_torque_low_pct: float = Field(description="its lowest credible value [% of rated torque]")
+    circuit: CircuitParameters
+    locked_rotor_torque_pct: float
+    breakaway_share: float = Field(description="breakaway torque of the driven load over its running torque [-]")
+    needs_breakaway: bool
+    thresholds: dict[str, float]
+    reading_defaults: dict[str, float]
+
+
 Motor = create_model(
     "Motor", __base__=_Response, __doc__="a motor with its current nameplate revision",
     id=(int, ...), site=(str, ...), tag=(str, ...), **_PLACE, **_NAMEPLATE,
-    revision=(int, ...), revision_id=(int, ...), updated_at=(datetime, ...), updated_by=(Optional[str], ...))
+    revision=(int, ...), revision_id=(int, ...), updated_at=(datetime, ...), updated_by=(Optional[str], ...),
+    provisional_basis=(Optional[ProvisionalBasis], Field(
+        description="for judging readings offline (the page caches it with the motor list); null where the "
+                    "engine cannot use the nameplate")))
 MotorRevision = create_model(
     "MotorRevision", __base__=_Response, __doc__="one nameplate revision, as written then",
     **_PLACE, **_NAMEPLATE, revision=(int, ...), revision_id=(int, ...), created_at=(datetime, ...),

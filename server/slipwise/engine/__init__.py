@@ -11,6 +11,7 @@ with plain columns or records. One concern per module:
 ``findings``    the words of each flag: findings and cautions
 ``records``     results as records, and the one commissioning-record CSV writer
 ``curve``       the torque-speed picture of one reading
+``basis``       the provisional basis: per nameplate, what the page judges a reading with offline
 """
 
 from ..physics.flags import Thresholds

@@ -12,6 +12,7 @@ from slipwise.store import motors as store
 from slipwise.store.database import Database
 from slipwise.store.errors import ConflictError, DuplicateError, NotFoundError, ValidationError
 from slipwise.store.motors import REVISION_FIELDS
+from slipwise.store.schema import REVISION_NAMEPLATE_FIELDS
 from slipwise.store.types import utcnow
 
 from .interpretation import check_nameplate
@@ -34,6 +35,13 @@ def _motor(conn, motor_id: int) -> RowMapping:
     if row is None:
         raise NotFoundError(f"no motor with id {motor_id}", "motor_id")
     return row
+
+
+def provisional_bases(rows: list[Mapping[str, Any]], thresholds: Any = None) -> list[dict | None]:
+    """The provisional basis of each motor row's nameplate revision (``slipwise.engine.basis``): what the
+    page judges a reading with offline. Worked out once per distinct nameplate and thresholds (cached)."""
+    from slipwise.engine.basis import provisional_bases as work_out
+    return work_out([{f: row[f] for f in REVISION_NAMEPLATE_FIELDS} for row in rows], thresholds)
 
 
 def list_motors(db: Database, site: str | None = None) -> list[RowMapping]:

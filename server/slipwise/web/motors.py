@@ -20,6 +20,11 @@ MOTOR_FIELDS = frozenset(MotorInput.model_fields)   # the accepted keys (the doc
 
 
 
+def _basis(row) -> dict | None:
+    """The provisional basis of one motor row (the page caches it for offline verdicts)."""
+    return services.provisional_bases([row], state().thresholds)[0]
+
+
 def _fields(parsed: dict) -> dict:
     return {name: parsed[name] for name in (*REVISION_NAMEPLATE_FIELDS, "location", "description")}
 
@@ -28,7 +33,9 @@ def _fields(parsed: dict) -> dict:
 @requires("technician")
 def list_motors():
     args = query(("site",))
-    items = [motor_dict(r) for r in services.list_motors(state().db, site=text_param(args, "site"))]
+    st = state()
+    rows = services.list_motors(st.db, site=text_param(args, "site"))
+    items = [motor_dict(r, b) for r, b in zip(rows, services.provisional_bases(rows, st.thresholds))]
     return jsonify({"motors": items, "count": len(items)})
 
 
@@ -40,14 +47,15 @@ def create_motor():
     fields = _fields(parsed)
     st = state()
     motor = services.register_motor(st.db, g.user, parsed["site"], parsed["tag"], fields, st.thresholds)
-    return jsonify(motor_dict(motor)), 201
+    return jsonify(motor_dict(motor, _basis(motor))), 201
 
 
 @bp.get("/motors/<id:motor_id>")
 @requires("technician")
 def get_motor(motor_id: int):
     query(())
-    return jsonify(motor_record_dict(services.get_motor(state().db, motor_id, with_history=True)))
+    record = services.get_motor(state().db, motor_id, with_history=True)
+    return jsonify(motor_record_dict(record, _basis(record.row)))
 
 
 @bp.put("/motors/<id:motor_id>")
@@ -60,4 +68,4 @@ def revise_motor(motor_id: int):
     st = state()
     motor, _changed = services.revise_motor(st.db, g.user, motor_id, fields, parsed["revision"], identity,
                                             st.thresholds)
-    return jsonify(motor_record_dict(motor)), 200
+    return jsonify(motor_record_dict(motor, _basis(motor.row))), 200

@@ -100,19 +100,20 @@ def review_json(review: Review) -> str:
     return _dumps(head)[:-1] + ',"reading":' + reading_record_json(review.reading) + "}"
 
 
-def motor_dict(row: Mapping[str, Any]) -> dict[str, Any]:
-    """A motor's current revision: id, site, tag, the revision fields, revision, revision_id, updated_at/by."""
+def motor_dict(row: Mapping[str, Any], basis: Mapping[str, Any] | None = None) -> dict[str, Any]:
+    """A motor's current revision: id, site, tag, the revision fields, revision, revision_id, updated_at/by,
+    and the revision's provisional basis (``services.motors.provisional_bases``)."""
     d = {"id": row["id"], "site": row["site"], "tag": row["tag"]}
     for f in REVISION_FIELDS:
         d[f] = row[f]
     d.update(revision=row["revision"], revision_id=row["revision_id"], updated_at=row["updated_at"].isoformat(),
-             updated_by=row["updated_by"])
+             updated_by=row["updated_by"], provisional_basis=basis)
     return d
 
 
-def motor_record_dict(record: MotorRecord) -> dict[str, Any]:
+def motor_record_dict(record: MotorRecord, basis: Mapping[str, Any] | None = None) -> dict[str, Any]:
     """A motor, with ``revisions`` (oldest first) when the record holds them."""
-    d = motor_dict(record.row)
+    d = motor_dict(record.row, basis)
     if record.revisions is not None:
         d["revisions"] = [
             {"revision": r["revision"], "revision_id": r["id"], "created_at": r["created_at"].isoformat(),
