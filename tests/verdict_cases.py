@@ -26,6 +26,7 @@ from pathlib import Path
 
 import numpy as np
 
+from slipwise.contract.fields import TEST_FIELDS
 from slipwise.engine import interpret_columns
 from slipwise.engine.basis import provisional_bases
 from slipwise.engine.records import records_to_columns, row_record
@@ -174,7 +175,9 @@ def demo_day() -> tuple[list[dict], list[tuple[int, dict]]]:
         if key not in index:
             index[key] = len(plates)
             plates.append(plate)
-        readings.append((index[key], {k: row[k] for k in READING_KEYS if row.get(k, "").strip()}))
+        # the running values and the sheet's tests as entered, and the date the reading was taken
+        readings.append((index[key], {k: row[k] for k in (*READING_KEYS, *TEST_FIELDS, "taken_at")
+                                      if row.get(k, "").strip()}))
     return plates, readings
 
 

@@ -7,6 +7,7 @@
 // With the motor's provisional basis (cached with the motor list) also the provisional verdict
 // and its band, by the engine's rules (verdict.js, checked by tests/vectors/provisional_verdict.json).
 
+import { sheetStates, withTests } from "./sheet.js";
 import { hasBasis, judgeReading } from "./verdict.js";
 
 const RPM_PER_HZ_PER_POLE = 120; // 60 s/min times 2 poles per pole pair
@@ -89,7 +90,8 @@ export function provisional(record) {
     basis_refused: record.provisional_basis === null, // the server found no circuit for this nameplate
     judged: null,
   };
-  if (out.has_basis) out.judged = judgeReading(record.provisional_basis, record);
+  // the running reading judged as the engine judges it, then the sheet's tests folded in the same way
+  if (out.has_basis) out.judged = withTests(judgeReading(record.provisional_basis, record), sheetStates(record, record));
   if (Number.isNaN(poles)) {
     notes.push("No pole count: check the rated speed and frequency.");
     return out;

@@ -105,6 +105,23 @@ export function sheetStates(m, v, today = new Date().toISOString().slice(0, 10))
   return out;
 }
 
+/**
+ * The provisional verdict with the tests folded in, as the engine folds them (engine/verdicts.py judge):
+ * a test beyond its limit asks to act, an instrument past its calibration date asks for the readings again,
+ * a test at its limit (or an insulation test voltage outside IEEE 43 Table 1) asks to watch.
+ * `judged` is verdict.js judgeReading's answer (null without a basis), `states` sheetStates' answer.
+ */
+export function withTests(judged, states) {
+  if (!judged) return judged;
+  const tests = Object.entries(states || {}).filter(([, t]) => t.state);
+  const beyond = (names) => tests.some(([k, t]) => names(k) && t.state === "beyond");
+  const act = judged.verdict === "act" || beyond((k) => k !== "instruments");
+  const retake = judged.verdict === "retake" || beyond((k) => k === "instruments");
+  const watch = judged.verdict === "watch" || tests.some(([, t]) => t.state === "at_limit");
+  const verdict = act ? "act" : retake ? "retake" : watch ? "watch" : "sound";
+  return { ...judged, verdict, tests: Object.fromEntries(tests.map(([k, t]) => [k, t.state])) };
+}
+
 // --- the form sections ------------------------------------------------------------------------------
 const TESTS = [
   ["insulation", "Insulation resistance", ["insulation_resistance_1min_mohm", "insulation_resistance_10min_mohm", "insulation_test_voltage_v", "winding_temperature_c"],

@@ -10,9 +10,11 @@
 from __future__ import annotations
 
 import json
+from datetime import datetime, timezone
 
 import pytest
 
+from slipwise.contract import NUMBER_FIELDS
 from slipwise.engine import Thresholds
 from slipwise.engine.basis import provisional_bases
 
@@ -38,8 +40,26 @@ def page(browser, service):
     ctx.close()
 
 
+# the whole provisional verdict as the reading form shows it: the running reading judged, and the sheet's
+# tests (static/js/sheet.js) folded in, on the reading's own date
+JUDGE_WITH_TESTS = """([bases, plates, cases]) => Promise.all([import('/js/verdict.js'), import('/js/sheet.js')]).then(
+    ([v, sh]) => cases.map(([j, reading, day]) =>
+        sh.withTests(v.judgeReading(bases[j], reading), sh.sheetStates(plates[j], reading, day))))"""
+
+
 def judge_in_page(page, bases, readings):
     return page.evaluate(JUDGE, [bases, [[j, r] for j, r in readings]])
+
+
+def _typed(values: dict) -> dict:
+    """CSV text as the page's form holds it: numbers for the number fields, text for the others."""
+    return {k: (float(v) if k in NUMBER_FIELDS and v not in ("", None) else v) for k, v in values.items()}
+
+
+def judge_with_tests_in_page(page, bases, plates, readings):
+    today = datetime.now(timezone.utc).date().isoformat()  # the server's date of a reading without taken_at
+    cases = [[j, _typed(r), str(r.get("taken_at") or "")[:10] or today] for j, r in readings]
+    return page.evaluate(JUDGE_WITH_TESTS, [bases, [_typed(p) for p in plates], cases])
 
 
 def _close(got, want, tol) -> bool:
@@ -78,7 +98,7 @@ def test_the_thresholds_in_force_travel_with_the_basis(page):
 def _agreement(page, plates, readings):
     results = server_results(plates, readings)
     kept = [(jr, res) for jr, res in zip(readings, results) if res is not None]   # the server refuses the rest
-    got = judge_in_page(page, provisional_bases(plates), [jr for jr, _ in kept])
+    got = judge_with_tests_in_page(page, provisional_bases(plates), plates, [jr for jr, _ in kept])
     same = sum(1 for (_, res), g in zip(kept, got) if g is not None and g["verdict"] == res["verdict"])
     unsafe = [(jr, res["verdict"], g and g["verdict"]) for (jr, res), g in zip(kept, got)
               if g is not None and ((g["verdict"] == "sound" and res["verdict"] == "act")
