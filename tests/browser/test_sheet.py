@@ -88,5 +88,6 @@ def test_sheet_offline_provisional_then_server_states(new_context, service):
         .map((li) => [li.dataset.test, li.querySelector('.state').dataset.state]))""")
     assert shown == SERVER, shown
     assert "swap" in page.text_content("#find-h + ul, .findings")
-    page.locator("#sheet-tests").scroll_into_view_if_needed()
+    # (the outbox's own move to the stored reading may redraw the screen once more: query it afresh)
+    page.evaluate("document.querySelector('#sheet-tests').scrollIntoView()")
     shot(page, "sheet-02-server-states")
