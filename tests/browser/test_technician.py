@@ -209,7 +209,7 @@ def test_phone_width_reading_and_result(new_context, service):
     shot(page, "phone-02-reading-form")
     page.click("#submit-reading")
     page.wait_for_selector("#load-value")
-    wait_until(page, "document.querySelector('img.picture').complete")
+    page.wait_for_selector("#curve-views svg.curve-view path.c-motor")  # the page-drawn picture
     assert page.evaluate("document.documentElement.scrollWidth") <= PHONE["width"]
     shot(page, "phone-03-result")
 
