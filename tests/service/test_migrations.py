@@ -40,7 +40,8 @@ def test_from_empty_matches_head_schema(database):
 
 def test_upgrade_from_previous_schema_keeps_rows(database, tmp_path, static_dir):
     db = _db(database)
-    assert db.upgrade(target=migrations.HEAD - 1) == (0, migrations.HEAD - 1)
+    # the schema before reading_flags (release 1): a later revision must not move this target (issue 11)
+    assert db.upgrade(target=migrations.BASELINE - 1) == (0, migrations.BASELINE - 1)
     now = datetime(2025, 3, 14, 8, 0, tzinfo=timezone.utc)
     result = {"slip_pct": 1.7, "flags": ["underloaded", "voltage_unbalance"], "findings": []}
     with db.write() as conn:

@@ -16,7 +16,7 @@ from typing import Any, Literal, Optional
 from pydantic import BaseModel, ConfigDict, Field, create_model
 from pydantic.json_schema import models_json_schema
 
-from .fields import (CHOICE_FIELDS, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS, NUMBER_FIELDS,
+from .fields import (CHOICE_FIELDS, ENERGY_FIELDS, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS, NUMBER_FIELDS,
                      READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_RESULT_COLUMNS)
 
 REF_TEMPLATE = "#/components/schemas/{model}"
@@ -49,9 +49,10 @@ class Finding(_Response):
     flag: Optional[str] = Field(description="the flag code the words belong to")
     text: str
     caution: Optional[str] = Field(description="what not to do until the cause is found, where one applies")
-    state: Optional[Literal["beyond", "at_limit"]] = Field(
+    state: Optional[Literal["beyond", "at_limit", "note"]] = Field(
         None, description="beyond: the whole band is past the threshold (a flag); at_limit: the band straddles it "
-        "(absent from results stored by engine 1.0.0)")
+        "(absent from results stored by engine 1.0.0); note: advice that is not a flag and leaves the verdict as "
+        "it is (right_size_candidate, since engine 1.2.0)")
 
 
 FlagCode = Literal[FLAG_CODES]  # type: ignore[valid-type]
@@ -79,9 +80,16 @@ class Review(_Response):
     reviewed_at: datetime
 
 
+def _added_later(name: str) -> tuple[Any, Any]:
+    """A reading field added after release 2 (issue 11's energy inputs): absent from readings stored before."""
+    kind, field = _declared(name)
+    return kind, Field(None, description=field.description + "; absent from readings stored before engine 1.2.0")
+
+
 ReadingInputs = create_model(
     "ReadingInputs", __base__=_Response, __doc__="the reading fields as interpreted",
-    **_fields(f for f in READING_FIELDS if f != "taken_at"),
+    **_fields(f for f in READING_FIELDS if f != "taken_at" and f not in ENERGY_FIELDS),
+    **{f: _added_later(f) for f in ENERGY_FIELDS},
     taken_at=(Optional[str], Field(description=TAKEN_AT_HELP)))
 
 

@@ -9,6 +9,7 @@ handful of strings.
 from __future__ import annotations
 
 from ..physics.flags import Thresholds, decode_combination
+from .energy import energy_findings
 from .verdicts import decode_extra
 
 #: Separator between findings (and between cautions) in one CSV cell.
@@ -147,7 +148,8 @@ def describe(combinations, th: Thresholds):
     findings : list of list of dict
         ``{"flag", "text", "caution", "state"}`` per combination: first the
         flags ("beyond"), then the codes "at the limit" (see
-        :func:`limit_codes`), each with its ``state``.
+        :func:`limit_codes`), each with its ``state``, then the notes of
+        :func:`slipwise.engine.energy.energy_findings` (state "note").
     """
     codes, findings = [], []
     for m in combinations:
@@ -165,6 +167,7 @@ def describe(combinations, th: Thresholds):
             if c == "overloaded" and sf_assumed:
                 text += SF_ASSUMED_TEXT
             row.append({"flag": c, "text": text, "caution": caution, "state": "at_limit"})
+        row += energy_findings(m, th)   # issue 11: right-sizing notes
         findings.append(row)
     return codes, findings
 

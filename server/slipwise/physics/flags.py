@@ -47,6 +47,12 @@ class Thresholds:
         Locked-rotor torque over the breakaway torque the load needs, below
         which a load that needs breakaway torque is flagged [-]; 1.3 is
         common practice (it covers a 10 % voltage dip at start, 0.9^2 = 0.81).
+    right_size_load_pct : float
+        Top of the load band below which a motor is a right-sizing candidate
+        [% of rated] (issue 11, :mod:`slipwise.engine.energy`); 75 %: US DOE
+        motors are designed for 50-100 % load with best efficiency near
+        75 %, and running at 75-100 % of rating is the common aim (common
+        practice).
     """
 
     underloaded_pct: float = 40.0
@@ -56,6 +62,8 @@ class Thresholds:
     current_unbalance_pct: float = 10.0
     inconsistency_factor: float = 1.0
     starting_margin: float = 1.3
+    # issue 11: right-sizing (engine/energy.py)
+    right_size_load_pct: float = 75.0
 
     #: allowed ranges for overrides
     RANGES = {
@@ -63,6 +71,7 @@ class Thresholds:
         "near_breakdown_margin": (1.0, 5.0), "voltage_unbalance_pct": (0.1, 10.0),
         "current_unbalance_pct": (1.0, 50.0), "inconsistency_factor": (0.25, 5.0),
         "starting_margin": (1.0, 3.0),
+        "right_size_load_pct": (40.0, 100.0),   # issue 11
     }
 
     @classmethod
