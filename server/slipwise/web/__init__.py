@@ -21,7 +21,7 @@ from sqlalchemy.exc import OperationalError
 from slipwise.store import Database, sqlite_url
 from slipwise.store.errors import UnavailableError
 
-from . import auth, errors, export, misc, motors, pages, readings, security
+from . import auth, errors, export, history, misc, motors, pages, readings, security
 from .params import IdConverter, PagePathConverter, ids_in_range
 from .state import State
 
@@ -119,7 +119,7 @@ def create_app(test_config: Mapping[str, Any] | None = None) -> Flask:
                 st.ensure_schema()
             auth.load_user()
 
-    for bp in (auth.bp, motors.bp, readings.bp, export.bp, misc.bp):
+    for bp in (auth.bp, motors.bp, readings.bp, export.bp, misc.bp, history.bp):   # history: issue 11
         app.register_blueprint(bp, url_prefix=API_PREFIX)
     app.register_blueprint(pages.bp)
     return app
