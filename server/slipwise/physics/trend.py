@@ -102,6 +102,13 @@ def _out(a):
     return a[()] if np.ndim(a) == 0 else a
 
 
+def _at_least(x, mark):
+    """``x >= mark`` with a relative tolerance of 1e-9: a change exactly at the mark, as read, is reported
+    (4.0 -> 3.2 is a 20 % fall even though the binary floats give 19.999999999999996)."""
+    x, mark = _f(x), _f(mark)
+    return x >= mark - 1e-9 * np.maximum(np.abs(mark), 1.0)
+
+
 def fall_pct(baseline, now):
     """Fall from the baseline [% of the baseline]: ``100 (b - x) / b``; NaN where ``b <= 0`` or unknown.
 
@@ -123,17 +130,17 @@ def insulation_falling(ir_40c_baseline_mohm, ir_40c_now_mohm, th: TrendThreshold
     ir_40c_baseline_mohm, ir_40c_now_mohm : numeric
         Insulation resistance corrected to 40 deg C [MOhm].
     """
-    return _out(fall_pct(ir_40c_baseline_mohm, ir_40c_now_mohm) >= th.insulation_fall_pct)
+    return _out(_at_least(fall_pct(ir_40c_baseline_mohm, ir_40c_now_mohm), th.insulation_fall_pct))
 
 
 def polarization_index_falling(pi_baseline, pi_now, th: TrendThresholds = TrendThresholds()):
     """Polarization index fallen since the baseline [-] by at least ``polarization_index_fall_pct``."""
-    return _out(fall_pct(pi_baseline, pi_now) >= th.polarization_index_fall_pct)
+    return _out(_at_least(fall_pct(pi_baseline, pi_now), th.polarization_index_fall_pct))
 
 
 def winding_unbalance_rising(unbalance_baseline_pct, unbalance_now_pct, th: TrendThresholds = TrendThresholds()):
     """Winding resistance unbalance risen [percentage points] by at least ``winding_unbalance_rise_pct``."""
-    return _out(_f(unbalance_now_pct) - _f(unbalance_baseline_pct) >= th.winding_unbalance_rise_pct)
+    return _out(_at_least(_f(unbalance_now_pct) - _f(unbalance_baseline_pct), th.winding_unbalance_rise_pct))
 
 
 def vibration_rising(velocity_baseline_mm_s, velocity_now_mm_s, zone_bc_mm_s, th: TrendThresholds = TrendThresholds()):
@@ -153,7 +160,7 @@ def vibration_rising(velocity_baseline_mm_s, velocity_now_mm_s, zone_bc_mm_s, th
     True
     """
     rise = _f(velocity_now_mm_s) - _f(velocity_baseline_mm_s)
-    return _out(rise >= th.vibration_rise_share * _f(zone_bc_mm_s))
+    return _out(_at_least(rise, th.vibration_rise_share * _f(zone_bc_mm_s)))
 
 
 def load_drifting(load_baseline_pct, load_now_pct, band_baseline_pct, band_now_pct,
@@ -169,7 +176,7 @@ def load_drifting(load_baseline_pct, load_now_pct, band_baseline_pct, band_now_p
     """
     change = np.abs(_f(load_now_pct) - _f(load_baseline_pct))
     bands = np.nan_to_num(_f(band_baseline_pct)) + np.nan_to_num(_f(band_now_pct))
-    return _out((change >= th.load_drift_pct) & (change > bands))
+    return _out(_at_least(change, th.load_drift_pct) & (change > bands))
 
 
 def unexplained_current_unbalance_pct(iu_baseline_pct, iu_now_pct, vu_baseline_pct, vu_now_pct,
@@ -193,5 +200,5 @@ def unexplained_current_unbalance_pct(iu_baseline_pct, iu_now_pct, vu_baseline_p
 def current_unbalance_rising(iu_baseline_pct, iu_now_pct, vu_baseline_pct, vu_now_pct,
                              th: TrendThresholds = TrendThresholds()):
     """Current unbalance risen faster than the voltage unbalance explains (by ``current_unbalance_margin_pct``)."""
-    return _out(unexplained_current_unbalance_pct(iu_baseline_pct, iu_now_pct, vu_baseline_pct, vu_now_pct, th)
-                >= th.current_unbalance_margin_pct)
+    return _out(_at_least(unexplained_current_unbalance_pct(iu_baseline_pct, iu_now_pct, vu_baseline_pct, vu_now_pct,
+                                                            th), th.current_unbalance_margin_pct))

@@ -16,7 +16,7 @@ import csv
 import io
 from typing import Any, Mapping
 
-from flask import Blueprint, Response, g, jsonify
+from flask import Blueprint, Response, current_app, g, jsonify
 
 from slipwise.contract.models import SiteSettingsInput, parse_body
 from slipwise.engine.records import neutralise
@@ -32,6 +32,10 @@ bp = Blueprint("history", __name__)
 
 #: Order of the last verdicts in the site's view: what needs someone first.
 VERDICT_ORDER = ("act", "retake", "watch", "sound", "never_read")
+
+
+def _trend():
+    return current_app.extensions.get("slipwise_trend")
 
 
 def _day(d) -> str | None:
@@ -96,7 +100,7 @@ def overview_dict(o: services.SiteOverview) -> dict:
 @requires("technician")
 def motor_history(motor_id: int):
     query(())
-    return jsonify(history_dict(services.motor_history(state().db, motor_id)))
+    return jsonify(history_dict(services.motor_history(state().db, motor_id, th=_trend())))
 
 
 @bp.get("/sites")
@@ -125,7 +129,7 @@ def set_site_settings(site_id: int):
 @requires("technician")
 def site_overview(site_id: int):
     query(())
-    return jsonify(overview_dict(services.site_overview(state().db, site_id)))
+    return jsonify(overview_dict(services.site_overview(state().db, site_id, th=_trend())))
 
 
 #: Columns of the site's CSV (one row per motor, in the overview's order).
@@ -138,7 +142,7 @@ OVERVIEW_CSV_COLUMNS = ("site", "tag", "location", "description", "last_visit", 
 @requires("supervisor")
 def site_overview_csv(site_id: int):
     query(())
-    data = overview_dict(services.site_overview(state().db, site_id))
+    data = overview_dict(services.site_overview(state().db, site_id, th=_trend()))
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\r\n")
     w.writerow(OVERVIEW_CSV_COLUMNS)
