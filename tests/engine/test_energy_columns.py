@@ -127,3 +127,20 @@ def test_interpret_one_carries_the_note_without_changing_the_verdict():
     notes = [f for f in costed["findings"] if f["flag"] == "right_size_candidate"]
     assert len(notes) == 1 and notes[0]["state"] == "note" and "75 %" in notes[0]["text"]
     assert "right_size_candidate" not in costed["flags"]
+
+
+def test_an_overloaded_motor_is_no_candidate():
+    cols, bits = _run(rated_kw=18.5, load=1.5, eta=0.88)
+    assert np.isnan(cols["right_size_rated_kw"][0]) and bits[0] == 0
+
+
+def test_a_reading_to_take_again_proposes_no_replacement():
+    a = lambda x: np.atleast_1d(np.asarray(x, dtype=float))  # noqa: E731
+    cols, bits = energy_columns(
+        Thresholds(), rated_kw=a(11.0), poles=a(4), rated_frequency_hz=a(50.0), load_pu=a(0.4), load_low_pu=a(0.4),
+        load_high_pu=a(0.4), efficiency_pu=a(0.88), efficiency_low_pu=a(0.88), efficiency_high_pu=a(0.88),
+        measured_input_kw=a(np.nan), measured_input_accuracy_pct=a(2.0), speed_rpm=a(1480.0), sync_speed_rpm=a(1500.0),
+        on_drive=np.array([False]), variable_torque=np.array([False]), hours_h=a(4000.0), price_per_kwh=a(0.1),
+        consistent=np.array([False]))
+    assert np.isnan(cols["right_size_rated_kw"][0]) and bits[0] == 0
+    assert cols["annual_energy_kwh"][0] > 0     # the energy is still reckoned

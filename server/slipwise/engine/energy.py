@@ -12,7 +12,10 @@ The rule for a candidate (documented, overridable by ``Thresholds.right_size_loa
   designed to run at 50-100 % of rated load, best efficiency near 75 %; the
   common aim of running a motor at 75-100 % of its rating is common practice; or
 * **less efficient than a new motor**: the top of the efficiency band is below the
-  IE3 minimum (IEC 60034-30-1) of the replacement.
+  IE3 minimum (IEC 60034-30-1) of the replacement;
+
+and in either case the top of the load band is at or below rated output: an
+overloaded motor's matter is the overload, and no larger motor is offered.
 
 The replacement is the smallest standard rating that carries the top of the
 load band at no more than its rating (:func:`slipwise.physics.right_sizing.right_size_rated_kw`),
@@ -42,7 +45,7 @@ REPLACEMENT_CLASS = "IE3"
 
 def energy_columns(th: Thresholds, *, rated_kw, poles, rated_frequency_hz, load_pu, load_low_pu, load_high_pu,
                    efficiency_pu, efficiency_low_pu, efficiency_high_pu, measured_input_kw, measured_input_accuracy_pct,
-                   speed_rpm, sync_speed_rpm, on_drive, variable_torque, hours_h, price_per_kwh):
+                   speed_rpm, sync_speed_rpm, on_drive, variable_torque, hours_h, price_per_kwh, consistent=True):
     """Energy result columns and the extra mask bits for valid rows.
 
     Parameters
@@ -62,6 +65,9 @@ def energy_columns(th: Thresholds, *, rated_kw, poles, rated_frequency_hz, load_
     hours_h, price_per_kwh : array
         Running hours a year [h] and energy price [currency/kWh]; NaN where
         neither the reading nor the site gives one.
+    consistent : array of bool, optional
+        The load methods agree: a reading to be taken again proposes no
+        replacement.
 
     Returns
     -------
@@ -93,7 +99,10 @@ def energy_columns(th: Thresholds, *, rated_kw, poles, rated_frequency_hz, load_
 
     underloaded = np.asarray(load_high_pu, dtype=float) * 100.0 < th.right_size_load_pct
     inefficient = np.asarray(efficiency_high_pu, dtype=float) < eta_new_pu
-    candidate = (underloaded | inefficient) & np.isfinite(sized.right_size_rated_kw)
+    # an overloaded motor's matter is its overload, not its energy: never a candidate (no larger motor is offered)
+    within_rating = np.asarray(load_high_pu, dtype=float) <= 1.0
+    candidate = (underloaded | inefficient) & within_rating & np.asarray(consistent, dtype=bool) \
+        & np.isfinite(sized.right_size_rated_kw)
     rated_new = np.where(candidate, sized.right_size_rated_kw, np.nan)
     columns = {
         "input_power_kw": power.input_power_kw, "input_power_low_kw": power.input_power_low_kw,

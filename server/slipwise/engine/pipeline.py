@@ -279,7 +279,7 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
         load_high_pu=fused.high, efficiency_pu=eta, efficiency_low_pu=eta_lo, efficiency_high_pu=eta_hi,
         measured_input_kw=p_in / KILOWATT_W, measured_input_accuracy_pct=p_in_acc, speed_rpm=n_meas,
         sync_speed_rpm=ns, on_drive=on_drive, variable_torque=pl("is_variable_torque"),
-        hours_h=r["operating_hours_per_year"], price_per_kwh=r["energy_price_per_kwh"])
+        hours_h=r["operating_hours_per_year"], price_per_kwh=r["energy_price_per_kwh"], consistent=consistent)
     mask |= energy_bits
     # --- end of energy
 

@@ -90,7 +90,9 @@ def overview_dict(o: services.SiteOverview) -> dict:
         by_verdict[word] = by_verdict.get(word, 0) + 1
     motors.sort(key=lambda m: (rank.get(m["verdict"] or "never_read", len(rank)), m["tag"]))
     overdue = sorted((m for m in motors if m["overdue"]), key=lambda m: (m["last_visit"] or "", m["tag"]))
-    candidates = sorted((m for m in motors if m["right_size_rated_kw"] is not None),
+    # a candidate with savings (or without hours to reckon them); one whose savings are 0 has nothing to offer
+    candidates = sorted((m for m in motors if m["right_size_rated_kw"] is not None
+                         and (m["right_size_savings_kwh"] is None or m["right_size_savings_kwh"] > 0)),
                         key=lambda m: (-(m["right_size_savings_kwh"] or 0.0), m["tag"]))
     return {"site": site_dict(o.site), "by_verdict": by_verdict, "overdue": overdue, "right_sizing": candidates,
             "motors": motors}
