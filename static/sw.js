@@ -14,6 +14,7 @@ const PRECACHE = [
   "/js/dom.js",
   "/js/fields.js",
   "/js/fieldrules.js",
+  "/js/history.js",
   "/fields.json",
   "/js/outbox.js",
   "/js/provisional.js",
