@@ -18,9 +18,10 @@ export function fieldsFrom(decl) {
   }]));
   const NAMEPLATE_NUMBERS = decl.nameplate_numbers.map(withRules);
   const READING_NUMBERS = decl.reading_numbers.map(withRules);
+  const SITE_NUMBERS = (decl.site_numbers || []).map(withRules);
   return {
-    NAMEPLATE_NUMBERS, READING_NUMBERS, NAMEPLATE_CHOICES: decl.nameplate_choices, TEXT: text,
-    FIELD: Object.fromEntries([...NAMEPLATE_NUMBERS, ...READING_NUMBERS].map((f) => [f.name, f])),
+    NAMEPLATE_NUMBERS, READING_NUMBERS, SITE_NUMBERS, NAMEPLATE_CHOICES: decl.nameplate_choices, TEXT: text,
+    FIELD: Object.fromEntries([...NAMEPLATE_NUMBERS, ...READING_NUMBERS, ...SITE_NUMBERS].map((f) => [f.name, f])),
   };
 }
 

@@ -10,6 +10,7 @@ const FIELDS = fieldsFrom(DECLARATION);
 export const NAMEPLATE_NUMBERS = FIELDS.NAMEPLATE_NUMBERS;
 export const NAMEPLATE_CHOICES = FIELDS.NAMEPLATE_CHOICES;
 export const READING_NUMBERS = FIELDS.READING_NUMBERS;
+export const SITE_NUMBERS = FIELDS.SITE_NUMBERS;   // issue 11: a site's settings
 export const TEXT_FIELDS = FIELDS.TEXT;
 export const FIELD = FIELDS.FIELD;
 export { fmtRange, parseChoice, parseField, parseText };

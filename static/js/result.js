@@ -30,6 +30,7 @@ export const FLAG_WORDS = {
   speed_above_synchronous: "Speed above synchronous",
   readings_inconsistent: "Readings contradict each other",
   starting_torque_low: "Starting torque margin low",
+  right_size_candidate: "A smaller or better motor would save energy",   // a note (issue 11), not a flag
 };
 /** A supervisor's review decision in words. */
 export function reviewWord(d) {
@@ -154,6 +155,19 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
       fact("Voltage deviation", `${fmt(result.voltage_deviation_pct, 1)} %`),
       fact("Frequency deviation", `${fmt(result.frequency_deviation_pct, 1)} %`),
       fact("Supply zone", result.supply_zone || "–", "IEC 60034-1"))));
+  // issue 11: energy and running cost; right-sizing where the server proposes it
+  if (result.input_power_kw != null) {
+    const range = result.input_power_low_kw != null ? `${fmt(result.input_power_low_kw, 1)}–${fmt(result.input_power_high_kw, 1)} kW` : "";
+    out.push(h("section", { class: "panel", "aria-labelledby": "energy-h", id: "energy" },
+      h("h2", { id: "energy-h" }, "Energy and cost"),
+      h("dl", { class: "facts" },
+        fact("Input power", `${fmt(result.input_power_kw, 1)} kW`, range, "input_power_kw"),
+        fact("Energy a year", result.annual_energy_kwh == null ? "– (no running hours)" : `${fmt(result.annual_energy_kwh, 0)} kWh`, "", "annual_energy_kwh"),
+        fact("Cost a year", result.annual_energy_cost == null ? "– (no energy price)" : fmt(result.annual_energy_cost, 0), "in the price's currency", "annual_energy_cost"),
+        result.right_size_rated_kw != null ? fact("Right-sized motor", `${fmt(result.right_size_rated_kw, 2)} kW`,
+          `IE3 ${fmt(result.right_size_efficiency_pct, 1)} %`, "right_size_rated_kw") : null,
+        result.right_size_rated_kw != null ? fact("Saving a year", result.right_size_savings_kwh == null ? "– (no running hours)" : `${fmt(result.right_size_savings_kwh, 0)} kWh`, "", "right_size_savings_kwh") : null)));
+  }
   out.push(h("section", { class: "panel", "aria-labelledby": "methods-h" },
     h("h2", { id: "methods-h" }, "Load by method"),
     h("dl", { class: "facts" },

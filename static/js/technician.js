@@ -256,6 +256,9 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
     group("Power analyser (optional)", ["power_kw", "power_factor"]),
     h("details", { class: "panel" }, h("summary", {}, "Instruments and running time (optional)"),
       h("div", { class: "grid" }, ["minutes_running", "tachometer_resolution_rpm", "current_accuracy_pct", "voltage_accuracy_pct", "power_accuracy_pct"].map((n) => fields[n].el))),
+    // issue 11: running hours and energy price; blank takes the site's defaults
+    h("details", { class: "panel", id: "energy-inputs" }, h("summary", {}, "Energy and cost (optional: blank takes the site's figures)"),
+      h("div", { class: "grid" }, ["operating_hours_per_year", "energy_price_per_kwh"].filter((n) => fields[n]).map((n) => fields[n].el))),
     formError,
     h("div", { class: "actions" }, submit, h("a", { class: "btn", href: "#/motors" }, "Other motor")));
   form.addEventListener("input", refresh);

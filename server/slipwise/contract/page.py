@@ -13,7 +13,8 @@ import sys
 from pathlib import Path
 
 from .cells import AMBIGUOUS_PATTERN, NUMBER_PATTERN, TRIM_CHARS
-from .fields import (ENGINE_VERSION, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, READING_NUMBERS, TEXT_FIELDS, ChoiceField,
+from .fields import (ENGINE_VERSION, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, READING_NUMBERS, SITE_NUMBERS, TEXT_FIELDS,
+                     ChoiceField,
                      NumberField, TextField)
 
 
@@ -45,6 +46,7 @@ def declaration() -> dict:
         "nameplate_numbers": [_number(f) for f in NAMEPLATE_NUMBERS],
         "nameplate_choices": [_choice(f) for f in NAMEPLATE_CHOICES],
         "reading_numbers": [_number(f) for f in READING_NUMBERS],
+        "site_numbers": [_number(f) for f in SITE_NUMBERS],   # issue 11: a site's settings
         "text": {name: _text(f) for name, f in TEXT_FIELDS.items()},
     }
 
