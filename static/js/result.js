@@ -163,8 +163,8 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
       h("dl", { class: "facts" },
         fact("Input power", `${fmt(result.input_power_kw, 1)} kW`, range, "input_power_kw"),
         fact("Energy a year", result.annual_energy_kwh == null ? "– (no running hours)" : `${fmt(result.annual_energy_kwh, 0)} kWh`, "", "annual_energy_kwh"),
-        fact("Cost a year", result.annual_energy_cost == null ? "– (no energy price)" : fmt(result.annual_energy_cost, 0), "in the price's currency", "annual_energy_cost"),
-        result.right_size_rated_kw != null ? fact("Right-sized motor", `${fmt(result.right_size_rated_kw, 2)} kW`,
+        fact("Cost a year", result.annual_energy_cost == null ? (result.annual_energy_kwh == null ? "– (no running hours)" : "– (no energy price)") : fmt(result.annual_energy_cost, 0), "in the price's currency", "annual_energy_cost"),
+        result.right_size_rated_kw != null ? fact("Right-sized motor", `${result.right_size_rated_kw} kW`,
           `IE3 ${fmt(result.right_size_efficiency_pct, 1)} %`, "right_size_rated_kw") : null,
         result.right_size_rated_kw != null ? fact("Saving a year", result.right_size_savings_kwh == null ? "– (no running hours)" : `${fmt(result.right_size_savings_kwh, 0)} kWh`, "", "right_size_savings_kwh") : null)));
   }
