@@ -109,3 +109,16 @@ def test_site_overview_and_csv(tech, sup, motor):
     text = sup.get(f"/api/v1/sites/{sid}/overview.csv").get_data(as_text=True)
     rows = list(csv.DictReader(io.StringIO(text)))
     assert rows[0]["tag"] == MOTOR["tag"] and rows[0]["right_size_rated_kw"]
+
+
+def test_a_replay_from_before_the_energy_fields_is_still_a_replay():
+    # a tablet's outbox entry made before issue 11 has no energy keys; after the upgrade the parsed body has
+    # them as null: the content hash must not change, or the replay would be refused as a conflict (409)
+    from slipwise.services.records import Submission
+    old = Submission("6f1c2d3e-4b5a-4c6d-8e7f-901a2b3c4d5e", 1, None, {"speed_rpm": 1475.0}, None, "2025-03-14", None)
+    new = Submission(old.client_id, 1, None, {"speed_rpm": 1475.0, **{f: None for f in ENERGY_FIELDS}}, None,
+                     "2025-03-14", None)
+    assert old.content_hash(7) == new.content_hash(7)
+    given = Submission(old.client_id, 1, None, {"speed_rpm": 1475.0, "operating_hours_per_year": 4000.0}, None,
+                       "2025-03-14", None)
+    assert given.content_hash(7) != old.content_hash(7)

@@ -13,7 +13,11 @@ import math
 from dataclasses import dataclass
 from typing import Any, Mapping
 
+from slipwise.contract import ENERGY_FIELDS
 from slipwise.store.motors import REVISION_FIELDS
+
+#: Reading fields added after release 2: left out of the content hash when blank.
+ADDED_LATER = frozenset(ENERGY_FIELDS)
 
 _NOT_FOR_ENGINE = ("location", "description")
 
@@ -48,9 +52,13 @@ class Submission:
     taken_at_utc: Any
 
     def content_hash(self, technician_id: int) -> str:
+        # fields added since release 2 (issue 11's energy inputs) count only when given: a submission stored
+        # before they existed, replayed from a tablet's outbox after the upgrade, keeps its hash (a replay,
+        # not a conflict)
+        inputs = {k: self.inputs[k] for k in sorted(self.inputs)
+                  if not (k in ADDED_LATER and self.inputs[k] is None)}
         content = {"client_id": self.client_id, "motor_id": self.motor_id, "supersedes": self.supersedes,
-                   "technician_id": technician_id, "taken_at": self.taken_at,
-                   "inputs": {k: self.inputs[k] for k in sorted(self.inputs)}}
+                   "technician_id": technician_id, "taken_at": self.taken_at, "inputs": inputs}
         return hashlib.sha256(to_json(content).encode("utf-8")).hexdigest()
 
 
