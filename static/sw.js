@@ -4,7 +4,7 @@
 // deletes the caches of older versions (the outbox lives in IndexedDB and is never touched here).
 // API calls always go to the network; nothing with a status >= 400 is ever cached.
 
-const VERSION = "1.0.21"; // raise with every change to a precached file
+const VERSION = "1.0.22"; // raise with every change to a precached file
 const CACHE = `slipwise-page-${VERSION}`;
 const PRECACHE = [
   "/",
@@ -15,6 +15,7 @@ const PRECACHE = [
   "/js/dom.js",
   "/js/fields.js",
   "/js/fieldrules.js",
+  "/js/history.js",
   "/fields.json",
   "/js/outbox.js",
   "/js/provisional.js",

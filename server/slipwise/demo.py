@@ -89,6 +89,8 @@ def load(db, samples: Path, data_dir: Path) -> dict:
         except (StoreError, FieldError) as e:
             raise DemoError(f"motors.csv line {i}: {e.message}") from None
 
+    settings_changed = _load_site_settings(db, samples)   # issue 11: before the readings take the defaults
+
     by_tag: dict[str, list[int]] = {}
     for (site, tag), mid in motor_ids.items():
         by_tag.setdefault(tag, []).append(mid)
@@ -120,8 +122,73 @@ def load(db, samples: Path, data_dir: Path) -> dict:
             continue
         stored += created
         replayed += not created
+    visits = _load_visits(db, samples, motor_ids, by_tag, users, skipped)
     return {"accounts": creds, "motors_added": made, "readings_added": stored, "readings_present": replayed,
-            "skipped": skipped}
+            "skipped": skipped, "visits_added": visits, "site_settings_written": settings_changed}
+
+
+# --- issue 11: site settings and earlier visits (field_samples/sites.csv, visits.csv) --------------------------
+def _load_site_settings(db, samples: Path) -> int:
+    """Each site's defaults from sites.csv (optional file); written only where they differ from those in force."""
+    from slipwise.contract.models import SiteSettingsInput, parse_body
+    from slipwise.services import sites as site_services
+    from slipwise.contract import FieldError
+
+    path = samples / "sites.csv"
+    if not path.is_file():
+        return 0
+    known = {s["name"]: s for s in site_services.list_sites(db)}
+    written = 0
+    for i, row in enumerate(_rows(path), start=2):
+        site = known.get(row.get("site", ""))
+        if site is None:
+            raise DemoError(f"sites.csv line {i}: site {row.get('site')!r} has no motor in motors.csv")
+        try:
+            values = parse_body(SiteSettingsInput, {k: (v or None) for k, v in row.items() if k != "site"})
+        except FieldError as e:
+            raise DemoError(f"sites.csv line {i}: {e.message}") from None
+        if values != {k: site_services.settings_of(site)[k] for k in values}:
+            site_services.set_site_settings(db, None, site["id"], values)
+            written += 1
+    return written
+
+
+def _load_visits(db, samples: Path, motor_ids: dict, by_tag: dict, users: dict, skipped: list) -> int:
+    """Earlier visits of some motors (visits.csv, optional; the readings.csv columns plus review, reviewer).
+
+    A visit with a review is reviewed by that supervisor when it is first stored (a replay adds nothing).
+    """
+    from slipwise.contract import FieldError
+    from slipwise.contract.models import reading_values, taken_at
+    from slipwise.services import readings as reading_services
+    from slipwise.services.records import Submission
+    from slipwise.store.errors import StoreError
+    from slipwise.store.types import utcnow
+
+    path = samples / "visits.csv"
+    if not path.is_file():
+        return 0
+    added = 0
+    for i, row in enumerate(_rows(path), start=2):
+        tag = row.get("tag", "")
+        ids = ([motor_ids[(row["site"], tag)]] if (row.get("site"), tag) in motor_ids else []) if row.get("site") \
+            else by_tag.get(tag, [])
+        user, reviewer = users.get(row.get("technician", "")), users.get(row.get("reviewer", ""))
+        if len(ids) != 1 or user is None or (row.get("review") and reviewer is None):
+            raise DemoError(f"visits.csv line {i}: tag, technician or reviewer unknown")
+        try:
+            taken = taken_at(row.get("taken_at"), utcnow())
+            key = json.dumps(["visit", tag, {k: row.get(k, "") for k in READING_FIELDS}], sort_keys=True)
+            sub = Submission(str(uuid.uuid5(DEMO_NAMESPACE, key)), ids[0], None, reading_values(row), *taken)
+            record, created = reading_services.submit_reading(db, user, sub)
+            if created and row.get("review"):
+                reading_services.review_reading(db, reviewer, record.row["id"], row["review"],
+                                                row.get("review_comment", ""))
+        except (StoreError, FieldError) as e:
+            skipped.append(f"visits.csv line {i} not stored: {e.message}")
+            continue
+        added += created
+    return added
 
 
 def run_demo(args, data_dir: Path) -> int:
@@ -143,6 +210,8 @@ def run_demo(args, data_dir: Path) -> int:
     print(f"demo database {db.describe()}")
     print(f"loaded from {samples}: {summary['motors_added']} motors and {summary['readings_added']} readings added"
           + (f" ({summary['readings_present']} already there)" if summary["readings_present"] else ""))
+    if summary.get("visits_added"):
+        print(f"earlier visits: {summary['visits_added']} readings added (field_samples/visits.csv)")
     for line in summary["skipped"]:
         print(f"  {line}")
     print("demo accounts (fictional people; passwords kept in "

@@ -7,6 +7,7 @@ import * as outbox from "./outbox.js";
 import { go, route, setRoutes } from "./router.js";
 import { refreshCount, sync } from "./sending.js";
 import { ctx, setReachable, showBanner, toast } from "./shell.js";
+import * as history from "./history.js";
 import * as sup from "./supervisor.js";
 import * as tech from "./technician.js";
 
@@ -30,6 +31,7 @@ setRoutes([
   [/^#\/motors$/, tech.renderMotors],
   [/^#\/motor\/new$/, tech.renderMotorForm],
   [/^#\/motor\/(\d+)$/, tech.renderReadingForm],
+  [/^#\/motor\/(\d+)\/history$/, history.renderMotorHistory],
   [/^#\/pending\/([0-9a-f-]{36})$/, tech.renderPending],
   [/^#\/outbox\/([0-9a-f-]{36})\/fix$/, tech.renderCorrection],
   [/^#\/outbox$/, tech.renderOutbox],

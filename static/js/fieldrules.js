@@ -21,11 +21,12 @@ export function fieldsFrom(decl) {
   const READING_NUMBERS = decl.reading_numbers.map(withRules);
   const READING_TEST_NUMBERS = (decl.reading_test_numbers || []).map(withRules);
   const READING_CHOICES = decl.reading_choices || [];
+  const SITE_NUMBERS = (decl.site_numbers || []).map(withRules);
   return {
-    NAMEPLATE_NUMBERS, READING_NUMBERS, READING_TEST_NUMBERS, READING_CHOICES,
+    NAMEPLATE_NUMBERS, READING_NUMBERS, READING_TEST_NUMBERS, READING_CHOICES, SITE_NUMBERS,
     NAMEPLATE_CHOICES: decl.nameplate_choices, TEXT: text, CRITERIA: decl.sheet_criteria || {},
     CHOICE: Object.fromEntries([...decl.nameplate_choices, ...READING_CHOICES].map((c) => [c.name, c])),
-    FIELD: Object.fromEntries([...NAMEPLATE_NUMBERS, ...READING_NUMBERS, ...READING_TEST_NUMBERS].map((f) => [f.name, f])),
+    FIELD: Object.fromEntries([...NAMEPLATE_NUMBERS, ...READING_NUMBERS, ...READING_TEST_NUMBERS, ...SITE_NUMBERS].map((f) => [f.name, f])),
   };
 }
 

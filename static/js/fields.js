@@ -14,6 +14,7 @@ export const READING_TEST_NUMBERS = FIELDS.READING_TEST_NUMBERS;
 export const READING_CHOICES = FIELDS.READING_CHOICES;
 export const CRITERIA = FIELDS.CRITERIA;
 export const CHOICE = FIELDS.CHOICE;
+export const SITE_NUMBERS = FIELDS.SITE_NUMBERS;   // issue 11: a site's settings
 export const TEXT_FIELDS = FIELDS.TEXT;
 export const FIELD = FIELDS.FIELD;
 export { fmtRange, parseChoice, parseField, parseText };

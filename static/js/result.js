@@ -40,6 +40,7 @@ export const FLAG_WORDS = {
   vibration_high: "Vibration high",
   rotation_wrong: "Wrong direction of rotation",
   instrument_calibration_expired: "Instrument out of calibration",
+  right_size_candidate: "A smaller or better motor would save energy",   // a note (issue 11), not a flag
 };
 /** A supervisor's review decision in words. */
 export function reviewWord(d) {
@@ -174,6 +175,19 @@ export function resultBlocks(result, { serviceFactor = 1, onRetake } = {}) {
       fact("Voltage deviation", qty(result.voltage_deviation_pct, 1, "%")),
       fact("Frequency deviation", qty(result.frequency_deviation_pct, 1, "%")),
       fact("Supply zone", result.supply_zone || "–", "IEC 60034-1"))));
+  // issue 11: energy and running cost; right-sizing where the server proposes it
+  if (result.input_power_kw != null) {
+    const range = result.input_power_low_kw != null ? `${fmt(result.input_power_low_kw, 1)}–${fmt(result.input_power_high_kw, 1)} kW` : "";
+    out.push(h("section", { class: "panel", "aria-labelledby": "energy-h", id: "energy" },
+      h("h2", { id: "energy-h" }, "Energy and cost"),
+      h("dl", { class: "facts" },
+        fact("Input power", `${fmt(result.input_power_kw, 1)} kW`, range, "input_power_kw"),
+        fact("Energy a year", result.annual_energy_kwh == null ? "– (no running hours)" : `${fmt(result.annual_energy_kwh, 0)} kWh`, "", "annual_energy_kwh"),
+        fact("Cost a year", result.annual_energy_cost == null ? (result.annual_energy_kwh == null ? "– (no running hours)" : "– (no energy price)") : fmt(result.annual_energy_cost, 0), "in the price's currency", "annual_energy_cost"),
+        result.right_size_rated_kw != null ? fact("Right-sized motor", `${result.right_size_rated_kw} kW`,
+          `IE3 ${fmt(result.right_size_efficiency_pct, 1)} %`, "right_size_rated_kw") : null,
+        result.right_size_rated_kw != null ? fact("Saving a year", result.right_size_savings_kwh == null ? "– (no running hours)" : `${fmt(result.right_size_savings_kwh, 0)} kWh`, "", "right_size_savings_kwh") : null)));
+  }
   out.push(h("section", { class: "panel", "aria-labelledby": "methods-h" },
     h("h2", { id: "methods-h" }, "Load by method"),
     h("dl", { class: "facts" },

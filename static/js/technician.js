@@ -14,6 +14,7 @@ import { askForBackgroundSync, sendReading, sync } from "./sending.js";
 import { sheetForm } from "./sheet.js";
 import { ctx, setReachable, toast } from "./shell.js";
 import { historyBlock, inputsBlock, reviewForm, state as logState } from "./supervisor.js";
+import { lastVisits, lastVisitLine } from "./history.js";
 
 const SITE_KEY = "slipwise.site";
 
@@ -100,6 +101,7 @@ function motorSummary(m) {
 // --- Motors ----------------------------------------------------------------------------------------
 export async function renderMotors(el, _arg, seq) {
   const { motors, cached } = await loadMotors();
+  const visits = await lastVisits().catch(() => new Map());   // issue 11: last verdict and visit per motor
   if (!routeIsCurrent(seq)) return;
   const sites = [...new Set(motors.map((m) => m.site))].sort();
   let site = localStorage.getItem(SITE_KEY) || "";
@@ -112,12 +114,16 @@ export async function renderMotors(el, _arg, seq) {
   const count = h("p", { class: "muted", role: "status" });
   const draw = () => {
     const q = search.value.trim().toLowerCase();
-    const shown = motors.filter((m) => (!siteSel.value || m.site === siteSel.value) && (!q || m.tag.toLowerCase().includes(q)));
+    // search by tag, description and location (issue 11)
+    const hit = (m) => !q || [m.tag, m.description, m.location].some((t) => (t || "").toLowerCase().includes(q));
+    const shown = motors.filter((m) => (!siteSel.value || m.site === siteSel.value) && hit(m));
     clear(list, shown.map((m) => h("li", {}, h("button", { type: "button", class: "motor", dataset: { id: m.id },
       onclick: () => go(`#/motor/${m.id}`) },
       h("span", { class: "tag" }, m.tag),
       h("span", { class: "muted" }, m.site, m.location ? ` · ${m.location}` : ""),
-      h("span", {}, m.rated_power_kw != null ? `${m.rated_power_kw} kW` : `${m.rated_power_hp} hp`, ` · ${m.rated_speed_rpm} rpm · ${m.rated_frequency_hz} Hz`)))));
+      h("span", {}, m.rated_power_kw != null ? `${m.rated_power_kw} kW` : `${m.rated_power_hp} hp`, ` · ${m.rated_speed_rpm} rpm · ${m.rated_frequency_hz} Hz`),
+      lastVisitLine(visits.get(m.id))),
+      h("a", { class: "visits-link", href: `#/motor/${m.id}/history` }, `Visits of ${m.tag}`))));
     count.textContent = `${shown.length} of ${motors.length} motors${cached ? " (saved copy: offline)" : ""}`;
   };
   siteSel.addEventListener("change", () => { localStorage.setItem(SITE_KEY, siteSel.value); draw(); });
@@ -127,7 +133,7 @@ export async function renderMotors(el, _arg, seq) {
       h("a", { class: "btn", href: "#/motor/new" }, "Register a motor")),
     h("div", { class: "panel filters" },
       h("div", { class: "field" }, h("label", { for: "site" }, "Site"), siteSel),
-      h("div", { class: "field" }, h("label", { for: "tag-search" }, "Find by tag"), search)),
+      h("div", { class: "field" }, h("label", { for: "tag-search" }, "Find by tag, description or location"), search)),
     count, list);
   draw();
 }
@@ -281,6 +287,9 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
     h("details", { class: "panel" }, h("summary", {}, "Instruments and running time (optional)"),
       h("div", { class: "grid" }, ["minutes_running", "tachometer_resolution_rpm", "current_accuracy_pct", "voltage_accuracy_pct", "power_accuracy_pct"].map((n) => fields[n].el))),
     ...sheet.after,
+    // issue 11: running hours and energy price; blank takes the site's defaults
+    h("details", { class: "panel", id: "energy-inputs" }, h("summary", {}, "Energy and cost (optional: blank takes the site's figures)"),
+      h("div", { class: "grid" }, ["operating_hours_per_year", "energy_price_per_kwh"].filter((n) => fields[n]).map((n) => fields[n].el))),
     formError,
     h("div", { class: "actions" }, submit, h("a", { class: "btn", href: "#/motors" }, "Other motor")));
   form.addEventListener("input", refresh);

@@ -40,7 +40,8 @@ def test_page_fields_mirror_the_contract(new_context, service):
     page = new_context(TABLET).new_page()
     page.goto("/")
     fields = page.evaluate("""import('/js/fields.js').then(m => ({numbers: [...m.NAMEPLATE_NUMBERS, ...m.READING_NUMBERS,
-                               ...m.READING_TEST_NUMBERS], choices: [...m.NAMEPLATE_CHOICES, ...m.READING_CHOICES]}))""")
+                               ...m.READING_TEST_NUMBERS, ...m.SITE_NUMBERS],
+                               choices: [...m.NAMEPLATE_CHOICES, ...m.READING_CHOICES]}))""")
     assert {f["name"] for f in fields["numbers"]} == set(NUMBER_FIELDS)
     for f in fields["numbers"]:
         spec = NUMBER_FIELDS[f["name"]]

@@ -36,7 +36,7 @@ from tests.service.conftest import app, database, motor, reading, static_dir, su
 from tests.service.test_roles import ACCESS, RANK  # one route policy for both matrices
 
 TABLES = ("users", "api_tokens", "sessions", "login_throttle", "sites", "motors", "motor_revisions", "readings",
-          "reading_flags", "reviews", "audit_log")
+          "reading_flags", "reviews", "audit_log", "site_settings")
 WRITES = frozenset({"POST", "PUT", "DELETE"})
 
 # route -> the least role that may use it (the policy of issue 3: technicians submit, see the day's log and
@@ -125,7 +125,8 @@ _tags = itertools.count(1)
 
 def request_for(method: str, rule: str, motor: dict, reading: dict) -> tuple[str, dict]:
     url = (rule.replace("<id:motor_id>", str(motor["id"])).replace("<id:reading_id>", str(reading["id"]))
-           .replace("/static/<path:path>", "/static/app.js").replace("<path:path>", "icons/icon.svg"))
+           .replace("<id:site_id>", "1").replace("/static/<path:path>", "/static/app.js")
+           .replace("<path:path>", "icons/icon.svg"))
     nameplate = {k: v for k, v in MOTOR.items() if k not in ("site", "location", "description")}
     bodies = {
         ("POST", "/api/v1/session"): {"username": "theo", "password": PASSWORDS["theo"]},
@@ -134,6 +135,7 @@ def request_for(method: str, rule: str, motor: dict, reading: dict) -> tuple[str
         ("POST", "/api/v1/readings"): reading_body(motor["id"]),
         ("POST", "/api/v1/readings/<id:reading_id>/review"): {"decision": "accepted"},
         ("POST", "/api/v1/interpret"): {**nameplate, **READING},
+        ("PUT", "/api/v1/sites/<id:site_id>/settings"): {"operating_hours_per_year": 4000},
     }
     return url, ({"json": bodies[(method, rule)]} if (method, rule) in bodies else {})
 

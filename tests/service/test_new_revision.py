@@ -47,6 +47,7 @@ def test_next_revision_is_numbered_and_upgrades_a_release_2_database(database, t
     assert after.pop("schema_version") == [(int(nxt),)]
     before.pop("schema_version")
     after.pop("record_chain", None)  # revision 0003's chain head
+    assert after.pop("site_settings", []) == []  # revision 0004's table, empty
     # every reading and review kept, the columns added since (0003's fingerprint, the test's column) at the
     # end; every other table untouched
     for name in ("readings", "reviews"):

@@ -125,6 +125,16 @@ def test_every_answer_matches_its_model(demo_day, doc, check, anon, tech, sup):
     entries = check("GET", "/api/v1/audit", sup.get("/api/v1/audit"))["entries"]
     assert entries
 
+    # issue 11: history, sites, settings, the site's view
+    for m in motors:
+        check("GET", f"/api/v1/motors/{m['id']}/history", tech.get(f"/api/v1/motors/{m['id']}/history"))
+    sites = check("GET", "/api/v1/sites", tech.get("/api/v1/sites"))["sites"]
+    for s in sites:
+        check("GET", f"/api/v1/sites/{s['id']}", tech.get(f"/api/v1/sites/{s['id']}"))
+        check("GET", f"/api/v1/sites/{s['id']}/overview", tech.get(f"/api/v1/sites/{s['id']}/overview"))
+    check("PUT", f"/api/v1/sites/{sites[0]['id']}/settings",
+          sup.put(f"/api/v1/sites/{sites[0]['id']}/settings", json={"operating_hours_per_year": 4000}))
+
     # errors, in the one documented shape
     check("POST", "/api/v1/motors", sup.post("/api/v1/motors", json={**MOTOR, "rated_voltage_v": -1}))  # 400
     check("GET", "/api/v1/motors", anon.get("/api/v1/motors"))  # 401

@@ -39,6 +39,13 @@ ACCESS = {
     ("GET", "/sw.js"): "anyone",
     ("GET", "/static/<path:path>"): "anyone",
     ("GET", "/<path:path>"): "anyone",
+    # issue 11
+    ("GET", "/api/v1/motors/<id:motor_id>/history"): "technician",
+    ("GET", "/api/v1/sites"): "technician",
+    ("GET", "/api/v1/sites/<id:site_id>"): "technician",
+    ("PUT", "/api/v1/sites/<id:site_id>/settings"): "supervisor",
+    ("GET", "/api/v1/sites/<id:site_id>/overview"): "technician",
+    ("GET", "/api/v1/sites/<id:site_id>/overview.csv"): "supervisor",
 }
 RANK = {"anyone": 0, "technician": 1, "supervisor": 2}
 WHO = {"anon": 0, "tech": 1, "sup": 2}
@@ -46,7 +53,7 @@ WHO = {"anon": 0, "tech": 1, "sup": 2}
 
 def _request(api, method, rule, motor, reading):
     url = (rule.replace("<id:motor_id>", str(motor["id"])).replace("<id:reading_id>", str(reading["id"]))
-           .replace("<path:path>", "app.js"))
+           .replace("<id:site_id>", "1").replace("<path:path>", "app.js"))
     nameplate = {k: v for k, v in MOTOR.items() if k not in ("site", "location", "description")}
     bodies = {
         ("POST", "/api/v1/session"): {"username": "tess", "password": "tess-password-1"},
@@ -55,6 +62,7 @@ def _request(api, method, rule, motor, reading):
         ("POST", "/api/v1/readings"): reading_body(motor["id"]),
         ("POST", "/api/v1/readings/<id:reading_id>/review"): {"decision": "accepted"},
         ("POST", "/api/v1/interpret"): {**nameplate, **READING},
+        ("PUT", "/api/v1/sites/<id:site_id>/settings"): {"operating_hours_per_year": 4000},
     }
     kw = {"json": bodies[(method, rule)]} if (method, rule) in bodies else {}
     if (method, rule) == ("POST", "/api/v1/session"):

@@ -13,8 +13,9 @@ from dataclasses import dataclass
 # 1.1.0: verdicts on the band, saturation, breakdown band, (V/f)^2 slip law on mains, IE tables at 60 Hz.
 # 1.1.1: load band: a kW reading good to half its last stated digit; a method clipped at zero in the fusion.
 # 1.2.0: the commissioning sheet's de-energised tests, vibration and rotation (optional reading fields).
+# 1.3.0: energy and cost of the operating point, right-sizing (the columns after the sheet's).
 # A stored result keeps the version that made it; a newer engine never rewrites it.
-ENGINE_VERSION = "1.2.0"
+ENGINE_VERSION = "1.3.0"
 
 
 @dataclass(frozen=True)
@@ -201,6 +202,28 @@ READING_NUMBERS: tuple[NumberField, ...] = (
                 help="time the motor has run before the reading; unknown means it may be cold",
                 label="Running before reading", hint="Blank: unknown, the rotor may be cold (widens the band)."),
 )
+# --- energy and running cost (issue 11): optional on a reading; blank takes the site's default
+# (services.sites: site settings a supervisor sets), a value on the reading overrides it.
+ENERGY_NUMBERS: tuple[NumberField, ...] = (
+    NumberField("operating_hours_per_year", 0.0, 8784.0, "h",
+                help="hours the motor runs a year (8784 in a leap year); the site's default when blank",
+                label="Running hours a year", hint="Blank: the site's default."),
+    NumberField("energy_price_per_kwh", 0.0, 100000.0, "per kWh",
+                help="average energy price per kWh in the site's currency (currency-neutral); the site's default "
+                     "when blank", label="Energy price", hint="Per kWh, any currency. Blank: the site's default."),
+)
+ENERGY_FIELDS: tuple[str, ...] = tuple(f.name for f in ENERGY_NUMBERS)
+READING_NUMBERS = READING_NUMBERS + ENERGY_NUMBERS
+# --- end of energy inputs
+
+# --- site settings (issue 11): a supervisor sets a site's defaults; the energy ones are ENERGY_NUMBERS'
+SITE_NUMBERS: tuple[NumberField, ...] = (
+    NumberField("visit_interval_months", 1, 120, "months", integer=True, default=12,
+                help="a motor whose last visit is older than this is overdue; 12 months when never set "
+                     "(the common inspection interval, common practice)",
+                label="Visit interval", hint="Blank: 12 months."),
+)
+
 CURRENT_FIELDS = ("current_l1_a", "current_l2_a", "current_l3_a")
 VOLTAGE_FIELDS = ("voltage_l12_v", "voltage_l23_v", "voltage_l31_v")
 
@@ -306,6 +329,12 @@ RESULT_COLUMNS: tuple[str, ...] = (
     "vibration_zone_bc_mm_s", "instruments_calibration_expired",
     "insulation_state", "polarization_index_state", "insulation_test_voltage_state", "winding_resistance_state",
     "overload_setting_state", "vibration_state", "rotation_state", "instruments_state",
+    # extensions since engine 1.3.0 (issue 11): energy and cost of the operating point, right-sizing
+    # (engine/energy.py); absent from results stored before
+    "input_power_kw", "input_power_low_kw", "input_power_high_kw",
+    "annual_energy_kwh", "annual_energy_cost",
+    "right_size_rated_kw", "right_size_efficiency_pct", "right_size_savings_kwh",
+    # end of the energy columns
 )
 #: The columns of a result stored by engine 1.0.0 (release 2): every later column may be absent from one.
 RESULT_COLUMNS_1_0: tuple[str, ...] = RESULT_COLUMNS[:RESULT_COLUMNS.index("engine_version") + 1]
@@ -334,9 +363,9 @@ FLAG_CODES: tuple[str, ...] = (
     "overload_setting_low", "vibration_high", "rotation_wrong", "instrument_calibration_expired",
 )
 
-NUMBER_FIELDS = {f.name: f for f in NAMEPLATE_NUMBERS + READING_NUMBERS + READING_TEST_NUMBERS}
+NUMBER_FIELDS = {f.name: f for f in NAMEPLATE_NUMBERS + READING_NUMBERS + READING_TEST_NUMBERS + SITE_NUMBERS}
 CHOICE_FIELDS = {f.name: f for f in NAMEPLATE_CHOICES + READING_CHOICES}
 # Record ids are INTEGER columns: 32-bit on PostgreSQL, so a larger id can never exist.
 MAX_ID = 2 ** 31 - 1
 
-__all__ = ["ENGINE_VERSION", "DESIGNS", "SUPPLIES", "DRIVEN_LOADS", "TAG_MAX_CHARS", "TAG_REFUSED_CATEGORIES", "NAMEPLATE_NUMBERS", "NAMEPLATE_CHOICES", "NAMEPLATE_FIELDS", "TEXT_FIELDS", "READING_NUMBERS", "CURRENT_FIELDS", "VOLTAGE_FIELDS", "READING_FIELDS", "READING_TEST_NUMBERS", "READING_CHOICES", "READING_TEXTS", "TEST_FIELDS", "WINDING_TYPES", "INSULATION_CLASSES", "WINDING_MATERIALS", "STARTERS", "FOUNDATIONS", "YES_NO", "TAKEN_AT_HELP", "REVIEW_DECISIONS", "DECISIONS_NEEDING_COMMENT", "INPUT_FIELDS", "RESULT_COLUMNS", "RESULT_COLUMNS_1_0", "VERDICT_WORDS", "STATE_WORDS", "TEXT_RESULT_COLUMNS", "INTEGER_RESULT_COLUMNS", "FLAG_CODES", "NUMBER_FIELDS", "CHOICE_FIELDS", "MAX_ID", "NumberField", "ChoiceField", "TextField"]
+__all__ = ["ENGINE_VERSION", "DESIGNS", "SUPPLIES", "DRIVEN_LOADS", "TAG_MAX_CHARS", "TAG_REFUSED_CATEGORIES", "NAMEPLATE_NUMBERS", "NAMEPLATE_CHOICES", "NAMEPLATE_FIELDS", "TEXT_FIELDS", "READING_NUMBERS", "CURRENT_FIELDS", "VOLTAGE_FIELDS", "READING_FIELDS", "READING_TEST_NUMBERS", "READING_CHOICES", "READING_TEXTS", "TEST_FIELDS", "WINDING_TYPES", "INSULATION_CLASSES", "WINDING_MATERIALS", "STARTERS", "FOUNDATIONS", "YES_NO", "TAKEN_AT_HELP", "REVIEW_DECISIONS", "DECISIONS_NEEDING_COMMENT", "INPUT_FIELDS", "RESULT_COLUMNS", "RESULT_COLUMNS_1_0", "VERDICT_WORDS", "STATE_WORDS", "TEXT_RESULT_COLUMNS", "INTEGER_RESULT_COLUMNS", "FLAG_CODES", "NUMBER_FIELDS", "CHOICE_FIELDS", "MAX_ID", "ENERGY_NUMBERS", "ENERGY_FIELDS", "SITE_NUMBERS", "NumberField", "ChoiceField", "TextField"]

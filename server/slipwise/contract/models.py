@@ -404,3 +404,15 @@ def reading_values(row: Mapping[str, Any]) -> dict:
 def given_reading(values: Mapping[str, Any]) -> dict:
     """A parsed reading as stored: every reading field, None where blank (text too)."""
     return {name: (values.get(name) if values.get(name) != "" else None) for name in READING_NAMES}
+
+
+# --------------------------------------------------------------------------- issue 11: site settings
+SiteSettingsInput = _model(
+    "SiteSettingsInput", _Body, (),
+    "a site's defaults: a reading that leaves operating_hours_per_year or energy_price_per_kwh blank takes the "
+    "site's value (a value on the reading overrides it); a visit older than visit_interval_months is overdue. "
+    "The whole set is written as a new entry (a blank field means no default; the interval 12 months)",
+    None,
+    **{name: _declared(name, optional=True)
+       for name in ("operating_hours_per_year", "energy_price_per_kwh", "visit_interval_months")})
+REQUEST_MODELS["SiteSettingsInput"] = SiteSettingsInput

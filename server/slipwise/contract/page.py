@@ -14,7 +14,7 @@ from pathlib import Path
 
 from .cells import AMBIGUOUS_PATTERN, NUMBER_PATTERN, TRIM_CHARS
 from .fields import (ENGINE_VERSION, NAMEPLATE_CHOICES, NAMEPLATE_NUMBERS, READING_CHOICES, READING_NUMBERS,
-                     READING_TEST_NUMBERS, TEXT_FIELDS, ChoiceField, NumberField, TextField)
+                     READING_TEST_NUMBERS, SITE_NUMBERS, TEXT_FIELDS, ChoiceField, NumberField, TextField)
 
 
 def _number(f: NumberField) -> dict:
@@ -106,6 +106,7 @@ def declaration() -> dict:
         "reading_test_numbers": [_number(f) for f in READING_TEST_NUMBERS],
         "reading_choices": [_choice(f) for f in READING_CHOICES],
         "sheet_criteria": sheet_criteria(),
+        "site_numbers": [_number(f) for f in SITE_NUMBERS],   # issue 11: a site's settings
         "text": {name: _text(f) for name, f in TEXT_FIELDS.items()},
     }
 

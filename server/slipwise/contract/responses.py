@@ -16,7 +16,7 @@ from typing import Any, Literal, Optional
 from pydantic import BaseModel, ConfigDict, Field, create_model
 from pydantic.json_schema import models_json_schema
 
-from .fields import (CHOICE_FIELDS, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS, NUMBER_FIELDS,
+from .fields import (CHOICE_FIELDS, ENERGY_FIELDS, FLAG_CODES, INTEGER_RESULT_COLUMNS, NAMEPLATE_FIELDS, NUMBER_FIELDS,
                      READING_FIELDS, RESULT_COLUMNS, REVIEW_DECISIONS, TAKEN_AT_HELP, TEXT_FIELDS,
                      TEXT_RESULT_COLUMNS, VERDICT_WORDS)
 
@@ -58,9 +58,10 @@ class Finding(_Response):
     flag: Optional[str] = Field(description="the flag code the words belong to")
     text: str
     caution: Optional[str] = Field(description="what not to do until the cause is found, where one applies")
-    state: Optional[Literal["beyond", "at_limit"]] = Field(
+    state: Optional[Literal["beyond", "at_limit", "note"]] = Field(
         None, description="beyond: the whole band is past the threshold (a flag); at_limit: the band straddles it "
-        "(absent from results stored by engine 1.0.0)")
+        "(absent from results stored by engine 1.0.0); note: advice that is not a flag and leaves the verdict as "
+        "it is (right_size_candidate, since engine 1.2.0)")
 
 
 FlagCode = Literal[FLAG_CODES]  # type: ignore[valid-type]
@@ -93,9 +94,16 @@ class Review(_Response):
     fingerprint: Optional[str] = Field(description=FINGERPRINT_HELP)
 
 
+def _added_later(name: str) -> tuple[Any, Any]:
+    """A reading field added after release 2 (issue 11's energy inputs): absent from readings stored before."""
+    kind, field = _declared(name)
+    return kind, Field(None, description=field.description + "; absent from readings stored before engine 1.2.0")
+
+
 ReadingInputs = create_model(
     "ReadingInputs", __base__=_Response, __doc__="the reading fields as interpreted",
-    **_fields(f for f in READING_FIELDS if f != "taken_at"),
+    **_fields(f for f in READING_FIELDS if f != "taken_at" and f not in ENERGY_FIELDS),
+    **{f: _added_later(f) for f in ENERGY_FIELDS},
     taken_at=(Optional[str], Field(description=TAKEN_AT_HELP)))
 
 
@@ -310,9 +318,111 @@ class Error(_Response):
     error: ErrorDetail
 
 
-RESPONSE_MODELS = {m.__name__: m for m in (Error, Session, Motor, MotorDetail, MotorList, Reading, ReadingList, TorqueSpeedCurve,
-                                           ReadingListing,
-                                           ReviewCreated, Result, Health, AuditList)}
+# --------------------------------------------------------------------------- issue 11: history and sites
+class SiteSettings(_Response):
+    operating_hours_per_year: Optional[float] = Field(description="default running hours a year [h]; null: none")
+    energy_price_per_kwh: Optional[float] = Field(description="default energy price [currency/kWh]; null: none")
+    visit_interval_months: int = Field(description="a visit older than this is overdue [months]")
+    set_at: Optional[datetime] = Field(description="when these settings were written; null: never set (defaults)")
+    set_by: Optional[str]
+
+
+class Site(_Response):
+    id: int
+    name: str
+    settings: SiteSettings
+
+
+class SiteList(_Response):
+    count: int
+    sites: list[Site]
+
+
+class Change(_Response):
+    code: Literal["insulation_falling", "polarization_index_falling", "winding_unbalance_rising",
+                  "vibration_rising", "load_drifting", "current_unbalance_rising"]
+    text: str
+    caution: str
+
+
+class Visit(_Response):
+    """One reading of the motor with its key results (null where its engine gave none or nothing was measured)."""
+    reading_id: int
+    taken_at: str
+    taken_date: str
+    engine_version: str
+    technician: str
+    review: Optional[Literal[REVIEW_DECISIONS]] = Field(  # type: ignore[valid-type]
+        description="the latest review decision; null before any")
+    supersedes: Optional[int]
+    superseded_by: Optional[int]
+    baseline: bool = Field(description="the first accepted reading not superseded: what later visits are compared with")
+    load_pct: Optional[float]
+    load_low_pct: Optional[float]
+    load_high_pct: Optional[float]
+    load_state: Optional[str]
+    current_unbalance_pct: Optional[float]
+    voltage_unbalance_pct: Optional[float]
+    efficiency_pct: Optional[float]
+    breakdown_margin: Optional[float]
+    breakdown_margin_low: Optional[float]
+    insulation_resistance_40c_mohm: Optional[float]
+    polarization_index: Optional[float]
+    winding_resistance_unbalance_pct: Optional[float]
+    vibration_zone: Optional[str]
+    vibration_velocity_mm_s: Optional[float]
+    verdict: Optional[str]
+    input_power_kw: Optional[float]
+    annual_energy_kwh: Optional[float]
+    right_size_rated_kw: Optional[float]
+    right_size_savings_kwh: Optional[float]
+    changes: list[Change] = Field(description="change-from-baseline findings of this visit")
+
+
+class MotorHistory(_Response):
+    motor_id: int
+    site: str
+    tag: str
+    location: str
+    description: str
+    visit_interval_months: int
+    baseline_reading_id: Optional[int]
+    last_visit: Optional[str] = Field(description="date of the last reading, YYYY-MM-DD")
+    next_visit_due: Optional[str] = Field(description="last visit plus the site's interval, YYYY-MM-DD")
+    overdue: bool
+    count: int
+    visits: list[Visit]
+
+
+class SiteMotor(_Response):
+    motor_id: int
+    tag: str
+    location: str
+    description: str
+    last_visit: Optional[str]
+    next_visit_due: Optional[str]
+    overdue: bool
+    last_reading_id: Optional[int] = Field(description="the last reading that stands (not superseded, not sent back)")
+    verdict: Optional[str]
+    review: Optional[str]
+    changes: list[str] = Field(description="change codes of the last reading that stands")
+    input_power_kw: Optional[float]
+    annual_energy_kwh: Optional[float]
+    right_size_rated_kw: Optional[float]
+    right_size_savings_kwh: Optional[float]
+
+
+class SiteOverview(_Response):
+    site: Site
+    by_verdict: dict[str, int] = Field(description="motors per last verdict (never_read: no reading yet)")
+    overdue: list[SiteMotor] = Field(description="motors whose next visit is past, oldest visit first")
+    right_sizing: list[SiteMotor] = Field(description="right-sizing candidates, largest yearly savings first")
+    motors: list[SiteMotor] = Field(description="every motor of the site, by last verdict (act first), then tag")
+
+
+RESPONSE_MODELS = {m.__name__: m for m in (Error, Session, Motor, MotorDetail, MotorList, Reading, ReadingList,
+                                           TorqueSpeedCurve, ReadingListing, ReviewCreated, Result, Health, AuditList,
+                                           Site, SiteList, MotorHistory, SiteOverview)}   # issue 11: the last four
 
 
 # --------------------------------------------------------------------------- JSON Schema -> OpenAPI 3.0
@@ -339,7 +449,7 @@ def _openapi30(node: Any) -> Any:
 
 
 # written in place where used rather than as components of their own (a reader sees the nested shape at once)
-INLINE = ("ErrorDetail", "ReadingInputs", "MotorRevision", "AuditEntry")
+INLINE = ("ErrorDetail", "ReadingInputs", "MotorRevision", "AuditEntry", "SiteSettings", "Change")
 
 
 def _inline(node: Any, defs: dict) -> Any:

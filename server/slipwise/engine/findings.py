@@ -9,6 +9,7 @@ handful of strings.
 from __future__ import annotations
 
 from ..physics.flags import Thresholds, decode_combination
+from .energy import energy_findings
 from .verdicts import decode_extra, decode_test_facts
 
 #: Separator between findings (and between cautions) in one CSV cell.
@@ -256,7 +257,8 @@ def describe(combinations, th: Thresholds):
     findings : list of list of dict
         ``{"flag", "text", "caution", "state"}`` per combination: first the
         flags ("beyond"), then the codes "at the limit" (see
-        :func:`limit_codes`), each with its ``state``.
+        :func:`limit_codes`), each with its ``state``, then the notes of
+        :func:`slipwise.engine.energy.energy_findings` (state "note").
     """
     codes, findings = [], []
     for m in combinations:
@@ -285,6 +287,7 @@ def describe(combinations, th: Thresholds):
         if facts["test_voltage_off"]:
             row.append({"flag": "insulation_test_voltage", "text": TEST_VOLTAGE_TEXT, "caution": CAUTION_INSULATION,
                         "state": "at_limit"})
+        row += energy_findings(m, th)   # issue 11: right-sizing notes
         findings.append(row)
     return codes, findings
 

@@ -20,6 +20,7 @@ from ..physics import circuit as ckt
 from ..physics import efficiency, load, meter, speed, supply, torque_speed, typical
 from ..physics.flags import Thresholds, combination_mask
 from ..physics.units import KILOWATT_W
+from .energy import energy_columns   # issue 11
 from .findings import describe, findings_text, limit_codes
 from .verdicts import judge
 from .inputs import Parsed, column, column_length
@@ -198,9 +199,10 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
     pk = r["power_kw"] * KILOWATT_W
     p_in = np.where(np.isnan(pk), load.input_power_w(r["v_mean"], i_meas, r["power_factor"]), pk)
     acc_vipf = load.input_power_accuracy_pct(r["voltage_accuracy_pct"], r["current_accuracy_pct"], r["power_factor"])
+    p_in_acc = np.where(np.isnan(pk), acc_vipf, meter.reading_accuracy_pct(r["power_accuracy_pct"], r["power_kw"]))
     share = typical.FIXED_LOSS_SHARE
     out_power = load.input_power_method(
-        p_in, np.where(np.isnan(pk), acc_vipf, meter.reading_accuracy_pct(r["power_accuracy_pct"], r["power_kw"])),
+        p_in, p_in_acc,
         core_now, fw_now, stator_now, s,
         p_rated_w, fixed_loss_band=(typical.FIXED_LOSS_SHARE_LOW / share, typical.FIXED_LOSS_SHARE_HIGH / share))
 
@@ -279,6 +281,16 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
     mask = combination_mask(states.flags, np.where(consistent, -1, outlier), on_drive, at_sync)
     mask |= states.extra_bits
 
+    # --- energy, cost and right-sizing (issue 11; engine/energy.py) ------------------------------
+    energy_cols, energy_bits = energy_columns(
+        th, rated_kw=rated_kw, poles=poles, rated_frequency_hz=f_r, load_pu=load_pu, load_low_pu=fused.low,
+        load_high_pu=fused.high, efficiency_pu=eta, efficiency_low_pu=eta_lo, efficiency_high_pu=eta_hi,
+        measured_input_kw=p_in / KILOWATT_W, measured_input_accuracy_pct=p_in_acc, speed_rpm=n_meas,
+        sync_speed_rpm=ns, on_drive=on_drive, variable_torque=pl("is_variable_torque"),
+        hours_h=r["operating_hours_per_year"], price_per_kwh=r["energy_price_per_kwh"], consistent=consistent)
+    mask |= energy_bits
+    # --- end of energy
+
     res = {
         "poles": poles, "sync_speed_rpm": ns, "slip_pct": 100.0 * s, "slip_rpm": slip_rpm,
         "load_pct": 100.0 * load_pu, "load_low_pct": 100.0 * fused.low, "load_high_pct": 100.0 * fused.high,
@@ -296,6 +308,7 @@ def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Threshol
         "breakdown_torque_now_pct": bd_pct, "starting_margin": starting,
         "operating_side_code": np.where(has_point, np.where(stable, 1, 2), 0),
         **states.columns, **test_cols,
+        **energy_cols,   # issue 11
     }
     return res, mask
 

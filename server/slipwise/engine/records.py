@@ -61,6 +61,10 @@ RESULT_DECIMALS: dict[str, int] = {
     "winding_resistance_25c_ohm": 6,                                    # a micro-ohmmeter's 1 µΩ
     "overload_setting_pct": 1, "overload_setting_max_pct": 1, "overload_relay_current_a": 2,
     "vibration_zone_bc_mm_s": 2,
+    # issue 11: energy (10 W; whole kWh and currency units a year: hours and price are estimates)
+    "input_power_kw": 2, "input_power_low_kw": 2, "input_power_high_kw": 2,
+    "annual_energy_kwh": 0, "annual_energy_cost": 0,
+    "right_size_rated_kw": 2, "right_size_efficiency_pct": 1, "right_size_savings_kwh": 0,
 }
 _SPEC = {column: f".{places}f" for column, places in RESULT_DECIMALS.items()}
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")

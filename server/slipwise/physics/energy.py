@@ -345,3 +345,27 @@ def savings_to_report_kwh(signed_savings_kwh):
     """
     s = _f(signed_savings_kwh)
     return _out(np.where(s < 0.0, 0.0, s)), _out(s < 0.0)
+
+
+def savings_within_use_kwh(savings_kwh, annual_use_kwh):
+    """Savings no larger than the whole year's use.
+
+    Parameters
+    ----------
+    savings_kwh : numeric
+        Savings to report [kWh], >= 0 (see :func:`savings_to_report_kwh`).
+    annual_use_kwh : numeric
+        The present motor's energy a year [kWh] (:func:`annual_energy_kwh` of
+        the input power); NaN where unknown.
+
+    Returns
+    -------
+    numeric
+        ``min(savings, use)`` [kWh]; the savings unchanged where the use is
+        NaN. The savings are reckoned from the shaft output over the
+        efficiency, the use from the measured input where there is one: two
+        estimates of the same power, so the first may exceed the second by
+        their errors; a replacement cannot save more than the motor uses.
+    """
+    s, e = _f(savings_kwh), _f(annual_use_kwh)
+    return _out(np.where(np.isfinite(e) & (s > e), e, s))

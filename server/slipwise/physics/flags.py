@@ -56,6 +56,12 @@ class Thresholds:
         Largest unbalance of the three line-to-line winding resistances [%];
         2 % is a common acceptance figure (common practice; no standard found
         that states it for motors; :mod:`slipwise.physics.winding`).
+    right_size_load_pct : float
+        Top of the load band below which a motor is a right-sizing candidate
+        [% of rated] (issue 11, :mod:`slipwise.engine.energy`); 75 %: US DOE
+        motors are designed for 50-100 % load with best efficiency near
+        75 %, and running at 75-100 % of rating is the common aim (common
+        practice).
     """
 
     underloaded_pct: float = 40.0
@@ -66,6 +72,8 @@ class Thresholds:
     inconsistency_factor: float = 1.0
     starting_margin: float = 1.3
     winding_resistance_unbalance_pct: float = DEFAULT_UNBALANCE_LIMIT_PCT
+    # issue 11: right-sizing (engine/energy.py)
+    right_size_load_pct: float = 75.0
 
     #: allowed ranges for overrides
     RANGES = {
@@ -73,6 +81,7 @@ class Thresholds:
         "near_breakdown_margin": (1.0, 5.0), "voltage_unbalance_pct": (0.1, 10.0),
         "current_unbalance_pct": (1.0, 50.0), "inconsistency_factor": (0.25, 5.0),
         "starting_margin": (1.0, 3.0), "winding_resistance_unbalance_pct": (0.5, 20.0),
+        "right_size_load_pct": (40.0, 100.0),   # issue 11
     }
 
     @classmethod

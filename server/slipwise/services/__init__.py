@@ -10,5 +10,7 @@ Modules: ``records`` (the parsed submission, the engine's input record, JSON
 text for storage), ``interpretation`` (the engine, its input errors as
 ValidationError), ``motors`` (register, revise, read), ``readings`` (submit,
 review, read, day log, export rows, interpret without storing), ``accounts``
-(users and tokens for the CLI), ``audit`` (the trail, read back).
+(users and tokens for the CLI), ``audit`` (the trail, read back), ``sites`` (a site's settings: default running
+hours and energy price, visit interval; issue 11), ``history`` (a motor's visits with baseline and changes, a
+site's view; issue 11).
 """

@@ -27,6 +27,7 @@ from slipwise.store.errors import ConflictError, DuplicateError, NotFoundError, 
 from slipwise.store.schema import DECISIONS
 from slipwise.store.types import utcnow
 
+from . import sites
 from .interpretation import interpret
 from .records import Submission, engine_record, to_json
 
@@ -155,9 +156,10 @@ def interpret_reading(db: Database, inputs: Mapping[str, Any], taken_at: str | N
     if motor_id is not None:
         with db.read() as conn:
             motor = store_motors.motor_row(conn, motor_id)
+            site = sites.defaults_for_motor(conn, motor_id)   # issue 11: the site's energy defaults
         if motor is None:
             raise NotFoundError(f"no motor with id {motor_id}", "motor_id")
-        record = engine_record(motor, motor["tag"], inputs, taken_at)
+        record = engine_record(motor, motor["tag"], sites.with_site_defaults(inputs, site), taken_at)
     else:
         record = engine_record(nameplate or {}, tag, inputs, taken_at)
     return interpret(record, thresholds)
@@ -200,6 +202,7 @@ def submit_reading(db: Database, user: Mapping[str, Any], sub: Submission,
         revision = store_motors.latest_revision(conn, sub.motor_id)
         if revision is None:
             raise NotFoundError(f"no motor with id {sub.motor_id}", "motor_id")
+        site = sites.defaults_for_motor(conn, sub.motor_id)   # issue 11: the site's energy defaults
         if sub.supersedes is not None:
             old_motor = store.motor_of(conn, sub.supersedes)
             if old_motor is None:
@@ -207,9 +210,11 @@ def submit_reading(db: Database, user: Mapping[str, Any], sub: Submission,
             if old_motor != sub.motor_id:
                 raise ValidationError(f"reading {sub.supersedes} is of another motor; a correction must be of "
                                       "the same motor", "supersedes")
-    result = interpret(engine_record(revision, revision["motor_tag"], sub.inputs, sub.taken_at), thresholds)
+    # a blank energy input takes the site's default; the value used is stored with the inputs
+    used_inputs = sites.with_site_defaults(sub.inputs, site)
+    result = interpret(engine_record(revision, revision["motor_tag"], used_inputs, sub.taken_at), thresholds)
     now = utcnow()
-    stored_inputs = dict(sub.inputs)
+    stored_inputs = dict(used_inputs)
     stored_inputs["taken_at"] = sub.taken_at
     try:
         with db.write() as conn:  # one transaction: the reading, its result, its flags, its audit row

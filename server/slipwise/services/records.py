@@ -13,8 +13,11 @@ import math
 from dataclasses import dataclass
 from typing import Any, Mapping
 
-from slipwise.contract import TEST_FIELDS
+from slipwise.contract import ENERGY_FIELDS, TEST_FIELDS
 from slipwise.store.motors import REVISION_FIELDS
+
+#: Reading fields added after release 2: left out of the content hash when blank.
+ADDED_LATER = frozenset(TEST_FIELDS) | frozenset(ENERGY_FIELDS)   # the sheet (1.2.0), energy (1.3.0)
 
 _NOT_FOR_ENGINE = ("location", "description")
 
@@ -49,9 +52,11 @@ class Submission:
     taken_at_utc: Any
 
     def content_hash(self, technician_id: int) -> str:
-        # the sheet's tests (engine 1.2.0) count only when given: a reading without them hashes as it did
-        # before them, so an entry queued on a tablet before the upgrade replays as the same reading
-        inputs = {k: self.inputs[k] for k in sorted(self.inputs) if k not in TEST_FIELDS or self.inputs[k] is not None}
+        # fields added since release 2 (issue 11's energy inputs) count only when given: a submission stored
+        # before they existed, replayed from a tablet's outbox after the upgrade, keeps its hash (a replay,
+        # not a conflict)
+        inputs = {k: self.inputs[k] for k in sorted(self.inputs)
+                  if not (k in ADDED_LATER and self.inputs[k] is None)}
         content = {"client_id": self.client_id, "motor_id": self.motor_id, "supersedes": self.supersedes,
                    "technician_id": technician_id, "taken_at": self.taken_at, "inputs": inputs}
         return hashlib.sha256(to_json(content).encode("utf-8")).hexdigest()

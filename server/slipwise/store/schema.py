@@ -4,7 +4,7 @@ The Alembic revisions in ``alembic/versions/`` build this schema on a database;
 ``tests/service/test_migrations.py`` checks that the two agree, so a column
 added here without a migration step fails the suite.
 
-Append-only tables: ``readings``, ``reviews``, ``audit_log`` and
+Append-only tables: ``readings``, ``reviews``, ``audit_log``, ``site_settings`` and
 ``motor_revisions`` receive INSERTs only; a correction is a new row.
 """
 
@@ -79,6 +79,20 @@ sites = Table(
     Column("id", Integer, primary_key=True),
     Column("name", String(120), nullable=False, unique=True),
     Column("created_at", UTCDateTime, nullable=False),
+)
+
+# issue 11: a site's defaults for a reading's energy inputs and its visit interval. Append-only: a change
+# is a new row; the latest row of a site is in force (revision 0004).
+site_settings = Table(
+    "site_settings", metadata,
+    Column("id", Integer, primary_key=True),
+    Column("site_id", Integer, ForeignKey("sites.id"), nullable=False),
+    Column("operating_hours_per_year", Float),
+    Column("energy_price_per_kwh", Float),
+    Column("visit_interval_months", Integer, nullable=False),
+    Column("set_at", UTCDateTime, nullable=False),
+    Column("set_by", Integer, ForeignKey("users.id")),
+    Index("ix_site_settings_site_id", "site_id"),
 )
 
 motors = Table(

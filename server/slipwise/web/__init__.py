@@ -21,7 +21,7 @@ from sqlalchemy.exc import OperationalError
 from slipwise.store import Database, sqlite_url
 from slipwise.store.errors import UnavailableError
 
-from . import auth, errors, export, misc, motors, pages, readings, security
+from . import auth, errors, export, history, misc, motors, pages, readings, security
 from .params import IdConverter, PagePathConverter, ids_in_range
 from .state import State
 
@@ -33,6 +33,7 @@ DEFAULTS: dict[str, Any] = {
     "DB_SCHEMA": None,             # PostgreSQL schema to use (search_path); tests give each run its own
     "SECRET_KEY": None,            # default: generated once and kept in DATA_DIR/secret_key
     "THRESHOLDS": None,            # mapping, or path of a JSON file, for slipwise.engine.Thresholds
+    "TREND_THRESHOLDS": None,      # issue 11: mapping, JSON text or path, for slipwise.physics.trend.TrendThresholds
     "MAX_CONTENT_LENGTH": 256 * 1024,
     "SESSION_HOURS": 12,           # one shift
     "SESSION_COOKIE_SECURE": False,  # True forces Secure cookies behind a TLS-terminating proxy
@@ -78,6 +79,16 @@ def load_thresholds(value: Any):
     return thresholds_from_mapping(json.loads(Path(value).read_text()))
 
 
+def load_trend_thresholds(value: Any):
+    """Issue 11: the change-from-baseline marks (``TrendThresholds``) with the configured overrides."""
+    from slipwise.engine.history import trend_thresholds
+    if value is None or value == "":
+        return trend_thresholds(None)
+    if isinstance(value, str):
+        value = json.loads(value if value.lstrip().startswith("{") else Path(value).read_text())
+    return trend_thresholds(value)
+
+
 def resolved_database_url(config: Mapping[str, Any]) -> str:
     return config.get("DATABASE_URL") or sqlite_url(Path(config["DATA_DIR"]) / "slipwise.sqlite3")
 
@@ -105,6 +116,7 @@ def create_app(test_config: Mapping[str, Any] | None = None) -> Flask:
         logging.getLogger("slipwise.web").warning("database not usable at start (%s); checking again per request",
                                                   str(getattr(e, "orig", None) or e).strip().splitlines()[0][:200])
     app.extensions["slipwise"] = st
+    app.extensions["slipwise_trend"] = load_trend_thresholds(app.config["TREND_THRESHOLDS"])   # issue 11
 
     hops = int(app.config["PROXY_HOPS"] or 0)
     if hops < 0:
@@ -129,7 +141,7 @@ def create_app(test_config: Mapping[str, Any] | None = None) -> Flask:
                 st.ensure_schema()
             auth.load_user()
 
-    for bp in (auth.bp, motors.bp, readings.bp, export.bp, misc.bp):
+    for bp in (auth.bp, motors.bp, readings.bp, export.bp, misc.bp, history.bp):   # history: issue 11
         app.register_blueprint(bp, url_prefix=API_PREFIX)
     app.register_blueprint(pages.bp)
     return app

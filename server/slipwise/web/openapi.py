@@ -104,7 +104,7 @@ def document() -> dict:
 
 PUBLIC, SIGNED_IN = "public", "signed in"           # who may call: nobody signed in, anyone signed in,
 TECH, SUP = "technician, supervisor", "supervisor"  # or these roles
-ID = {name: _path_id(name) for name in ("motor_id", "reading_id")}
+ID = {name: _path_id(name) for name in ("motor_id", "reading_id", "site_id")}
 SVG = {"description": "SVG", "content": {"image/svg+xml": {"schema": {"type": "string"}}}}
 PDF = {"description": "PDF (A4)", "content": {"application/pdf": {"schema": {"type": "string", "format": "binary"}}}}
 CSV = {"description": "UTF-8 CSV with a header row", "content": {"text/csv": {"schema": {"type": "string"}}}}
@@ -177,6 +177,21 @@ ROUTES: list[tuple] = [
     ("/audit", "get", SUP, "the audit trail: who did what when, newest first", AUDIT_Q, None,
      {"200": ("entries", "AuditList")}, "400 401 403"),
     ("/openapi.json", "get", PUBLIC, "this document", [], None, {"200": THIS}, ""),
+    # issue 11: the motor over time, sites and their settings, the site's view
+    ("/motors/{motor_id}/history", "get", TECH, "every reading of the motor across days, oldest first, with key "
+     "results, the baseline (first accepted reading), change-from-baseline findings and the next visit due",
+     [ID["motor_id"]], None, {"200": ("the motor's visits", "MotorHistory")}, "400 401 404"),
+    ("/sites", "get", TECH, "sites with their settings", [], None, {"200": ("sites", "SiteList")}, "400 401"),
+    ("/sites/{site_id}", "get", TECH, "one site with its settings", [ID["site_id"]], None,
+     {"200": ("the site", "Site")}, "400 401 404"),
+    ("/sites/{site_id}/settings", "put", SUP, "set the site's default running hours and energy price (a reading's "
+     "own value overrides them) and its visit interval; written as a new entry", [ID["site_id"], CSRF],
+     "SiteSettingsInput", {"200": ("the site with its new settings", "Site")}, "400 401 403 404 413 415"),
+    ("/sites/{site_id}/overview", "get", TECH, "the site's view: motors by last verdict, overdue visits, "
+     "right-sizing candidates ranked by yearly savings", [ID["site_id"]], None,
+     {"200": ("the site's view", "SiteOverview")}, "400 401 404"),
+    ("/sites/{site_id}/overview.csv", "get", SUP, "the site's view as CSV, one row per motor", [ID["site_id"]], None,
+     {"200": CSV}, "400 401 403 404"),
 ]
 
 
