@@ -29,7 +29,7 @@ function applyTheme(theme) {
 setRoutes([
   [/^#\/login$/, renderLogin],
   [/^#\/motors$/, tech.renderMotors],
-  [/^#\/motor\/new$/, tech.renderMotorForm],
+  [/^#\/motor\/new$/, renderRegister],
   [/^#\/motor\/(\d+)$/, tech.renderReadingForm],
   [/^#\/motor\/(\d+)\/history$/, history.renderMotorHistory],
   [/^#\/pending\/([0-9a-f-]{36})$/, tech.renderPending],
@@ -42,6 +42,19 @@ setRoutes([
 ]);
 
 // --- screens owned here --------------------------------------------------------------------------
+/** Register a motor: its module loads when opened (it needs the network anyway, so it is not precached). */
+async function renderRegister(el, arg, seq) {
+  let screen;
+  try {
+    screen = await import("./register.js");
+  } catch {
+    clear(el, h("h1", { tabindex: "-1" }, "Register a motor"),
+      h("p", { class: "panel" }, "Registering a motor needs the network: the server checks the nameplate. Readings of motors already on the list can be taken offline."),
+      h("a", { class: "btn", href: "#/motors" }, "Back to motors"));
+    return;
+  }
+  return screen.renderMotorForm(el, arg, seq);
+}
 async function renderLogin(el) {
   const err = h("p", { class: "error", id: "login-error", role: "alert" });
   const user = h("input", { id: "login-user", name: "username", autocomplete: "username", autocapitalize: "none",

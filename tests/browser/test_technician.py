@@ -7,7 +7,7 @@ import time
 
 import pytest
 
-from .conftest import PHONE, TABLET, contrast, fill_reading, shot, sign_in, wait_until
+from .conftest import PHONE, TABLET, contrast, fill_reading, shot, sign_in, wait_for_worker, wait_until
 
 pytestmark = pytest.mark.browser
 
@@ -409,3 +409,15 @@ def test_picture_enlarges_and_reopens_offline(new_context, service):
     page.goto(f"/#/reading/{reading_id}")
     page.wait_for_selector("#curve-views svg.curve-view path.c-motor")
     assert "rpm" in page.text_content("#curve-caption")
+
+
+def test_register_offline_says_the_network_is_needed(new_context, service):
+    """The register screen is not precached (it needs the server anyway): offline it says so plainly."""
+    ctx = new_context(TABLET)
+    page = ctx.new_page()
+    sign_in(page, "tess")
+    wait_for_worker(page)
+    ctx.set_offline(True)
+    page.goto("/#/motor/new")
+    wait_until(page, "document.querySelector('#main h1') && document.querySelector('#main h1').textContent === 'Register a motor'")
+    assert "needs the network" in page.text_content("#main")

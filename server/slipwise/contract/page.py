@@ -112,7 +112,7 @@ def declaration() -> dict:
 
 
 def render() -> str:
-    return json.dumps(declaration(), ensure_ascii=True, indent=1) + "\n"
+    return json.dumps(declaration(), ensure_ascii=True, separators=(",", ":")) + "\n"  # compact: it counts in the start weight
 
 
 if __name__ == "__main__":
