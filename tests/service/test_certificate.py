@@ -161,3 +161,37 @@ def test_whole_certificate_prints_stored_de_energised_tests():
                   "insulation low (beyond)", "Insulation resistance below the minimum."):
         assert words in text, words
     _save_pages(pdf, "tests")
+
+
+def test_certificate_reads_the_record_as_the_engine_stores_it():
+    """As stored by the engine: limit_flags is the record's text joined by ';', instruments the contract's
+    text (one "name; serial; YYYY-MM-DD" per line), values unrounded floats. (Read character by character,
+    a limit_flags text once printed "p (at the limit); o (at the limit); …".)"""
+    import json
+    from datetime import datetime, timezone
+    from types import SimpleNamespace
+
+    from slipwise.engine import Thresholds
+    from slipwise.web.certificate import render_certificate
+
+    inputs = {"speed_rpm": 1473, "frequency_hz": 50, "taken_at": "2026-11-24T14:00:00+01:00",
+              "insulation_resistance_1min_mohm": 2730.0, "insulation_resistance_10min_mohm": 6000.0,
+              "winding_temperature_c": 24.0, "insulation_test_voltage_v": 500.0,
+              "instruments": "Insulation tester; MT-4471; 2027-03-31\nMicro-ohmmeter; LR-0392; 2027-01-15"}
+    result = {"verdict": "watch", "insulation_resistance_40c_mohm": 900.5641491025003, "insulation_minimum_mohm": 5.0,
+              "polarization_index": 2.197802197802198, "insulation_state": "clear", "polarization_index_state": "at_limit",
+              "flags": [], "limit_flags": "polarization_index_low", "findings": []}
+    when = datetime(2026, 11, 24, 13, 0, tzinfo=timezone.utc)
+    row = {"id": 16, "site": "Larkspur Hill Hospital", "tag": "LH-AHU1-EF", "technician": "ivardy",
+           "technician_name": "Ines Vardy", "technician_role": "technician", "taken_at": inputs["taken_at"],
+           "received_at": when, "engine_version": "1.3.0", "motor_revision": 1, "superseded_by": None,
+           "supersedes_id": None, "fingerprint": "ef" * 32, "inputs": json.dumps(inputs), "result": json.dumps(result)}
+    plate = {"tag": "LH-AHU1-EF", "rated_power_kw": 11, "rated_voltage_v": 400, "rated_current_a": 21.5,
+             "location": "roof plant room R1", "description": "extract fan"}
+    cert = SimpleNamespace(reading=SimpleNamespace(row=row, reviews=[]), nameplate=plate)
+    text = _flat(_text(render_certificate(cert, address="https://slipwise.example/#/reading/16", picture_png=None,
+                                          thresholds=Thresholds())))
+    assert "polarization index low (at the limit)" in text and "p (at the limit)" not in text
+    assert "900.6 MΩ at 40 °C" in text and "900.564" not in text
+    for words in ("MT-4471", "2027-03-31", "LR-0392", "2027-01-15"):
+        assert words in text, words

@@ -67,8 +67,10 @@ def _num(value: Any, unit: str = "", digits: int | None = None) -> str:
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, (int, float)):
-        if digits is None:
-            text = f"{value:g}" if isinstance(value, float) else str(value)
+        if digits is None:  # a stored value printed to the digits a reader needs, not the float's own
+            text = str(value) if isinstance(value, int) else (
+                f"{value:.0f}" if abs(value) >= 1000 else f"{value:.1f}".rstrip("0").rstrip(".")
+                if abs(value) >= 100 else f"{value:.4g}")
         else:
             text = f"{value:,.{digits}f}"
     else:
@@ -102,6 +104,15 @@ def _local(when: datetime | str | None, zone) -> str:
     return local.strftime("%Y-%m-%d %H:%M") + f" (UTC{sign}{minutes // 60:02d}:{minutes % 60:02d})"
 
 
+def _codes(value: Any) -> list[str]:
+    """Flag codes as stored: a list, or the record's text joined by ';'."""
+    if not value:
+        return []
+    if isinstance(value, str):
+        return [c for c in value.split(";") if c]
+    return list(value)
+
+
 def _state(flag: str | None, flags: set[str], limit_flags: set[str], value: Any) -> str:
     if value is None or value == "":
         return NOT_RECORDED
@@ -128,8 +139,8 @@ def test_rows(inputs: Mapping[str, Any], result: Mapping[str, Any]) -> list[tupl
 
     Read with ``.get()`` from the stored dicts: absent keys print "not recorded".
     """
-    flags = set(result.get("flags") or ())
-    limits = set(result.get("limit_flags") or ())
+    flags = set(_codes(result.get("flags")))
+    limits = set(_codes(result.get("limit_flags")))
     ins_1 = inputs.get("insulation_resistance_1min_mohm")
     ins_40 = result.get("insulation_resistance_40c_mohm")
     ins_min = result.get("insulation_minimum_mohm")
@@ -386,8 +397,13 @@ def render_certificate(cert, *, address: str, picture_png: bytes | None, thresho
     instruments = inputs.get("instruments")
     if instruments:
         rows = []
-        for item in (instruments if isinstance(instruments, list) else [instruments]):
-            if isinstance(item, Mapping):
+        # the contract's text: one instrument per line, "name; serial; YYYY-MM-DD"
+        items = instruments if isinstance(instruments, list) else str(instruments).splitlines()
+        for item in items:
+            if isinstance(item, str) and item.count(";") == 2:
+                name, serial, due = (part.strip() for part in item.split(";"))
+                rows.append((name, serial, due))
+            elif isinstance(item, Mapping):
                 rows.append((item.get("name") or NOT_RECORDED, item.get("serial") or NOT_RECORDED,
                              item.get("calibration_due") or item.get("calibration_due_date") or NOT_RECORDED))
             else:
@@ -425,8 +441,8 @@ def render_certificate(cert, *, address: str, picture_png: bytes | None, thresho
         if f.get("caution"):
             para(f"   Caution: {f['caution']}", 8, "I")
     heading("Departures and outstanding items")
-    departures = [f"{c} (beyond)" for c in result.get("flags") or []]
-    departures += [f"{c} (at the limit)" for c in result.get("limit_flags") or []]
+    departures = [f"{c} (beyond)" for c in _codes(result.get("flags"))]
+    departures += [f"{c} (at the limit)" for c in _codes(result.get("limit_flags"))]
     para("Departures: " + ("; ".join(d.replace("_", " ") for d in departures) if departures else "none"))
     missing = [t[0] for t in test_rows(inputs, result) if t[4] == NOT_RECORDED]
     outstanding = []
