@@ -39,9 +39,22 @@ setRoutes([
   [/^#\/reading\/(\d+)$/, tech.renderReadingView],
   [/^#\/retake\/(\d+)$/, tech.renderRetake],
   [/^#\/log$/, sup.renderLog],
+  [/^#\/sites(?:\/(\d+))?$/, renderSiteView],
 ]);
 
 // --- screens owned here --------------------------------------------------------------------------
+/** A site's view (supervisors): its module loads when opened; it needs the network, so it is not precached. */
+async function renderSiteView(el, arg, seq) {
+  let screen;
+  try {
+    screen = await import("./sites.js");
+  } catch {
+    clear(el, h("h1", { tabindex: "-1" }, "Sites"), h("p", { class: "panel" }, "Offline: the site view needs the network."));
+    return;
+  }
+  return screen.renderSites(el, arg, seq);
+}
+
 /** Register a motor: its module loads when opened (it needs the network anyway, so it is not precached). */
 async function renderRegister(el, arg, seq) {
   let screen;

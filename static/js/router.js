@@ -27,7 +27,7 @@ export async function route() {
   let hash = location.hash || "#/motors";
   if (!ctx.user) hash = "#/login";
   else if (hash === "#/login") hash = "#/motors";
-  if (hash === "#/log" && ctx.user && ctx.user.role !== "supervisor") hash = "#/mine";
+  if ((hash === "#/log" || hash.startsWith("#/sites")) && ctx.user && ctx.user.role !== "supervisor") hash = "#/mine";
   const screen = $("#screen");
   for (const a of document.querySelectorAll("#tabs a")) {
     const cur = hash.startsWith(`#/${a.dataset.screen}`) || (a.dataset.screen === "motors" && hash.startsWith("#/motor"));

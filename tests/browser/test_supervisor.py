@@ -151,3 +151,41 @@ def test_desk_review_keeps_the_place_steps_and_accepts_a_run(new_context, servic
     reviewed = {rid: service.call("GET", f"/api/v1/readings/{rid}")[1]["review"] for rid in ids}
     assert all((reviewed[r] or {}).get("decision") == "accepted" for r in ids if verdicts[r] == "sound")
     assert all(reviewed[r] is None for r in ids if verdicts[r] != "sound")
+
+
+def test_site_view_ranks_savings_and_keeps_defaults(new_context, service):
+    """Issue 11: a supervisor's view of a site: motors by last verdict, overdue visits, right-sizing candidates
+    as a bar of yearly savings, the site's defaults (each save a new entry), the CSV."""
+    site = "Westfold cooling plant"
+    # a 30 kW pump running light (about a third of its rating): a right-sizing candidate
+    big = service.motor("WF-CWP-1 cooling water pump", site=site, rated_power_kw=30, rated_current_a=55,
+                        rated_speed_rpm=1470, driven_load="variable_torque")
+    small = service.motor("WF-CWP-2 cooling water pump", site=site)
+    for m, amps, speed in ((big, 24.0, 1494), (small, 20.0, 1478)):
+        status, r = service.call("POST", "/api/v1/readings", {
+            "client_id": str(uuid.uuid4()), "motor_id": m["id"], "frequency_hz": 50, "speed_rpm": speed,
+            "current_l1_a": amps, "current_l2_a": amps, "current_l3_a": amps, "voltage_l12_v": 400,
+            "voltage_l23_v": 400, "voltage_l31_v": 400, "operating_hours_per_year": 6000,
+            "energy_price_per_kwh": 0.2}, token=service.tech_token)
+        assert status == 201, r
+    sites = service.call("GET", "/api/v1/sites")[1]["sites"]
+    sid = next(x["id"] for x in sites if x["name"] == site)
+    overview = service.call("GET", f"/api/v1/sites/{sid}/overview")[1]
+    page = new_context(DESKTOP).new_page()
+    sign_in(page, "sam")
+    page.click("#tabs a[data-screen=sites]")
+    page.wait_for_selector("#site-pick")
+    page.select_option("#site-pick", str(sid))
+    wait_until(page, f"document.querySelectorAll('#site-motors tbody tr').length === 2")
+    wait_until(page, f"location.hash === '#/sites/{sid}' && !!document.querySelector('#by-verdict')")
+    assert page.locator("#by-verdict li").count() >= 1
+    candidates = [m["tag"] for m in overview["right_sizing"] if (m["right_size_savings_kwh"] or 0) > 0]
+    assert page.locator("#right-sizing svg.savings rect.bar").count() == len(candidates)
+    if candidates:
+        assert candidates[0] in page.get_attribute("#right-sizing svg.savings", "aria-label")
+    shot(page, "sup-04-site-view")
+    page.fill("#set-visit_interval_months", "6")
+    page.click("#site-settings button[type=submit]")
+    wait_until(page, f"document.querySelector('#set-visit_interval_months').value === '6'", 10)
+    after = service.call("GET", f"/api/v1/sites/{sid}")[1]
+    assert after["settings"]["visit_interval_months"] == 6
