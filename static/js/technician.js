@@ -101,8 +101,11 @@ export async function renderMotors(el, _arg, seq) {
     clear(list, shown.map((m) => h("li", {}, h("button", { type: "button", class: "motor", dataset: { id: m.id },
       onclick: () => go(`#/motor/${m.id}`) },
       h("span", { class: "tag" }, m.tag),
+      // what it drives: the description, else the driven machine's torque law
+      h("span", { class: "drives" }, m.description || (m.driven_load ? String(m.driven_load).replace("_", " ") + " load" : "")),
       h("span", { class: "muted" }, m.site, m.location ? ` · ${m.location}` : ""),
-      h("span", {}, m.rated_power_kw != null ? `${m.rated_power_kw} kW` : `${m.rated_power_hp} hp`, ` · ${m.rated_speed_rpm} rpm · ${m.rated_frequency_hz} Hz`),
+      h("span", {}, m.rated_power_kw != null ? `${m.rated_power_kw} kW` : `${m.rated_power_hp} hp`,
+        ` · ${m.rated_voltage_v} V · ${m.rated_speed_rpm} rpm · ${m.rated_frequency_hz} Hz`),
       lastVisitLine(visits.get(m.id))),
       h("a", { class: "visits-link", href: `#/motor/${m.id}/history` }, `Visits of ${m.tag}`))));
     count.textContent = `${shown.length} of ${motors.length} motors${cached ? " (saved copy: offline)" : ""}`;
@@ -134,11 +137,16 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
     return;
   }
   const values = opts.values || {};
-  const fields = Object.fromEntries(READING_NUMBERS.map((f) => [f.name, numberField(f, values[f.name], "rd")]));
+  // a current's hint speaks of this motor's rating, not only the contract's 0 to 10000 A
+  const rated = Number(motor.rated_current_a);
+  const forMotor = (f) => (f.name.startsWith("current_l") && rated > 0
+    ? { ...f, help: `This motor: rated ${rated} A, so about ${fmt(rated, 1)} A or less at full load; a mean above ${fmt(8 * rated, 0)} A (800 %) is refused.` } : f);
+  const fields = Object.fromEntries(READING_NUMBERS.map((f) => [f.name, numberField(forMotor(f), values[f.name], "rd")]));
   const sheet = sheetForm(motor, values, numberField); // the de-energised tests, vibration, instruments, notes
-  const group = (legend, names, extra) => h("fieldset", { class: "panel" }, h("legend", {}, legend), extra || null,
-    h("div", { class: "grid" }, names.map((n) => fields[n].el)));
+  const group = (legend, names, extra, cls = "grid") => h("fieldset", { class: "panel" }, h("legend", {}, legend), extra || null,
+    h("div", { class: cls }, names.map((n) => fields[n].el)));
   const aside = h("aside", { "aria-label": "Provisional values as you type" });
+  let warnedAbove = null; // the speed@frequency already warned about (sent on the second press)
   const formError = h("p", { class: "error", role: "alert", id: "reading-error" });
   const submit = h("button", { class: "btn btn-main", type: "submit", id: "submit-reading" }, opts.correcting ? "Send corrected reading" : "Interpret reading");
 
@@ -174,8 +182,10 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
         "overwrite each one before you send.")) : null,
     ...sheet.before,
     group("Speed and frequency", ["frequency_hz", "speed_rpm"]),
-    group("Line currents", ["current_l1_a", "current_l2_a", "current_l3_a"], h("p", { class: "hint" }, "Clamp around one phase conductor at a time. At least one current.")),
-    group("Line voltages", ["voltage_l12_v", "voltage_l23_v", "voltage_l31_v"], h("p", { class: "hint" }, "Line to line at the motor terminals or its isolator. Needed on mains; optional on a drive.")),
+    group("Line currents", ["current_l1_a", "current_l2_a", "current_l3_a"], h("p", { class: "hint", id: "currents-hint" },
+      "Clamp around one phase conductor at a time. At least one current. ", fields.current_l1_a.f.help || ""), "grid phases"),
+    group("Line voltages", ["voltage_l12_v", "voltage_l23_v", "voltage_l31_v"], h("p", { class: "hint" },
+      `Line to line at the motor terminals or its isolator (rated ${motor.rated_voltage_v} V). Needed on mains; optional on a drive.`), "grid phases"),
     group("Power analyser (optional)", ["power_kw", "power_factor"]),
     h("details", { class: "panel" }, h("summary", {}, "Instruments and running time (optional)"),
       h("div", { class: "grid" }, ["minutes_running", "tachometer_resolution_rpm", "current_accuracy_pct", "voltage_accuracy_pct", "power_accuracy_pct"].map((n) => fields[n].el))),
@@ -202,6 +212,16 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
       fields[key].input.focus();
       return;
     }
+    // a speed at or above synchronous: say so before sending, and send on a second press (it may be real:
+    // an overhauling load, or a misread tachometer)
+    const p = provisional({ ...motor, ...out });
+    const aboveKey = `${out.speed_rpm}@${out.frequency_hz}`;
+    if (p.sync_speed_rpm != null && out.speed_rpm >= p.sync_speed_rpm && warnedAbove !== aboveKey) {
+      warnedAbove = aboveKey;
+      formError.textContent = `The speed ${out.speed_rpm} rpm is at or above the synchronous ${fmt(p.sync_speed_rpm, 0)} rpm: a motor driving its load turns slower. Check the tachometer (tape, reflections, a gear or pulley ratio) and the frequency. Press the button again to send it as measured.`;
+      fields.speed_rpm.input.focus();
+      return;
+    }
     submit.disabled = true;
     const body = { client_id: uuid(), motor_id: motor.id, taken_at: localIso(), ...out };
     if (opts.supersedes) body.supersedes = opts.supersedes;
@@ -216,8 +236,14 @@ export async function renderReadingForm(el, motorIdText, seq, opts = {}) {
     go(`#/pending/${entry.client_id}`);
   });
 
-  clear(el, h("h1", { tabindex: "-1" }, opts.correcting ? "Correct the reading" : "New reading"), motorSummary(motor),
-    h("div", { class: "reading-layout" }, form, aside));
+  const layout = h("div", { class: "reading-layout" }, form);
+  clear(el, h("h1", { tabindex: "-1" }, opts.correcting ? "Correct the reading" : "New reading"), motorSummary(motor), layout);
+  // beside the form on a wide screen; on a tablet or phone in portrait just above the send button, where
+  // the technician looks before sending (below it, it was off-screen)
+  const wide = window.matchMedia("(min-width: 1000px)");
+  const place = () => (wide.matches ? layout.append(aside) : form.insertBefore(aside, formError));
+  place();
+  wide.addEventListener("change", place);
   refresh();
   const named = opts.serverError && (fields[opts.serverError.field] || sheet.fields[opts.serverError.field]);
   if (named) {

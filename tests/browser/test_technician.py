@@ -421,3 +421,32 @@ def test_register_offline_says_the_network_is_needed(new_context, service):
     page.goto("/#/motor/new")
     wait_until(page, "document.querySelector('#main h1') && document.querySelector('#main h1').textContent === 'Register a motor'")
     assert "needs the network" in page.text_content("#main")
+
+
+def test_portrait_form_puts_the_verdict_before_send_and_phases_in_a_row(new_context, service):
+    """Issue 12, item 8, on a portrait tablet and a phone: the as-you-type panel sits just above the send
+    button; the three phases share one row; a current's hint speaks of this motor's rating; a speed at or
+    above synchronous is questioned before it is sent (and sent as measured on a second press)."""
+    motor = service.motor("P-160 portrait pump")
+    for viewport in (TABLET, PHONE):
+        page = new_context(viewport).new_page()
+        sign_in(page, "tess")
+        page.goto(f"/#/motor/{motor['id']}")
+        page.wait_for_selector("#reading-form")
+        order = page.evaluate("""() => { const a = document.querySelector('#provisional'), b = document.querySelector('#submit-reading');
+            return !!(a.compareDocumentPosition(b) & Node.DOCUMENT_POSITION_FOLLOWING); }""")
+        assert order, viewport
+        tops = page.evaluate("['l1','l2','l3'].map(p => Math.round(document.querySelector('#rd-current_' + p + '_a').getBoundingClientRect().top))")
+        assert len(set(tops)) == 1, (viewport, tops)
+        assert "rated 28.5 A" in page.text_content("#currents-hint")
+        assert page.evaluate("document.documentElement.scrollWidth") <= viewport["width"]
+    fill_reading(page, {**GOOD, "speed_rpm": "1504"})
+    page.click("#submit-reading")
+    assert "above the synchronous 1500 rpm" in page.text_content("#reading-error")
+    assert service.readings_of(motor["id"]) == []  # not sent on the first press
+    page.click("#submit-reading")
+    page.wait_for_selector("#verdict, #send-state .state")
+    end = time.monotonic() + 15
+    while not (stored := service.readings_of(motor["id"])) and time.monotonic() < end:
+        time.sleep(0.2)
+    assert len(stored) == 1 and stored[0]["inputs"]["speed_rpm"] == 1504
