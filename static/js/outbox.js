@@ -164,6 +164,15 @@ export function newEntry(body, motor, username) {
  * Send one entry. Returns {outcome: "sent", reading} | {outcome: "rejected", error} | {outcome: "waiting", reason}.
  * `send(body)` is the POST; it throws ApiError or NetworkError.
  */
+/** Keep a reading the server stored in the saved copy of the technician's list (by id, once). */
+async function rememberStored(reading) {
+  if (!reading || reading.id == null) return;
+  try {
+    const mine = ((await cacheGet("mine")) || []).filter((r) => r.id !== reading.id);
+    await cachePut("mine", [...mine, reading]);
+  } catch { /* a copy for offline reading only: never stands in the way of the send */ }
+}
+
 export async function sendOne(entry, send) {
   entry.attempts = (entry.attempts || 0) + 1;
   entry.last_try_at = new Date().toISOString();
@@ -171,6 +180,7 @@ export async function sendOne(entry, send) {
     const r = await send(entry.body);
     await remove(entry.client_id);
     acknowledged.set(entry.client_id, r.data);
+    await rememberStored(r.data); // the "My readings" copy knows it even if the network goes again
     window.dispatchEvent(new CustomEvent("outbox-sent", { detail: { client_id: entry.client_id, reading: r.data } }));
     return { outcome: "sent", reading: r.data, created: r.status === 201 };
   } catch (err) {

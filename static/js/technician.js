@@ -373,6 +373,7 @@ export async function renderMine(el, _arg, seq) {
     readings = (await outbox.cacheGet("mine")) || [];
     note = " (saved copy: offline)";
   }
+  readings = readings.filter((r) => String(r.taken_at || "").slice(0, 10) === date || !r.taken_at);
   // retakes asked of me on any day, until a new reading answers them (cached for the basement)
   let retakes = [];
   try {
@@ -383,6 +384,14 @@ export async function renderMine(el, _arg, seq) {
     retakes = (await outbox.cacheGet("retakes")) || [];
   }
   if (!routeIsCurrent(seq)) return;
+  // the screen follows the outbox: a reading sent (or the network back) redraws it, never a stale count
+  const redraw = () => {
+    window.removeEventListener("outbox-sent", redraw);
+    window.removeEventListener("online", redraw);
+    if (routeIsCurrent(seq)) renderMine(el, _arg, seq);
+  };
+  window.addEventListener("outbox-sent", redraw);
+  window.addEventListener("online", redraw);
   const waiting = await outbox.all();
   const answered = new Set(waiting.map((e) => e.body.supersedes).filter(Boolean));
   const open = retakes.filter((r) => !answered.has(r.id));

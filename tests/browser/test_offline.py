@@ -232,3 +232,31 @@ def test_new_page_version_keeps_the_outbox(new_context, service, tmp_path):
         assert len(service.readings_of(motor["id"])) == 1
     finally:
         service.app.config["STATIC_DIR"] = old_dir
+
+
+def test_my_readings_offline_keeps_what_was_stored_and_follows_the_outbox(new_context, service):
+    """Issue 12, item 1: a reading stored minutes ago is on My readings offline, and the open screen follows
+    the outbox when the network returns (no stale "1 in the outbox" while everything was sent)."""
+    motor = service.motor("P-206 my readings pump")
+    ctx = new_context(TABLET)
+    page = ctx.new_page()
+    sign_in(page, "tess")
+    wait_for_worker(page)
+    page.goto("/#/motors")
+    page.wait_for_selector(f"#motor-list button[data-id='{motor['id']}']")
+    page.goto(f"/#/motor/{motor['id']}")              # online: stored at once
+    page.wait_for_selector("#reading-form")
+    fill_reading(page, READINGS[0])
+    page.click("#submit-reading")
+    page.wait_for_selector("#load-value")
+    ctx.set_offline(True)
+    enter(page, motor["id"], READINGS[1])           # offline: into the outbox
+    page.wait_for_selector("#send-state .state.waiting")
+    page.goto("/#/mine")
+    page.wait_for_selector("#mine-list li")
+    said = page.text_content("#main")
+    assert "1 stored reading(s) (saved copy: offline), 1 in the outbox" in said, said
+    ctx.set_offline(False)
+    page.evaluate("window.dispatchEvent(new Event('online'))")
+    wait_until(page, "document.querySelectorAll('#mine-list li').length === 2", 20)
+    assert "0 in the outbox" in page.text_content("#main")
