@@ -255,8 +255,13 @@ def test_my_readings_offline_keeps_what_was_stored_and_follows_the_outbox(new_co
     page.goto("/#/mine")
     page.wait_for_selector("#mine-list li")
     said = page.text_content("#main")
+    # the saved copy of this tablet: the reading it stored minutes ago (not "0 stored")
+    first = service.readings_of(motor["id"])[0]["id"]
     assert "1 stored reading(s) (saved copy: offline), 1 in the outbox" in said, said
+    assert page.locator(f"#mine-list li[data-id='{first}']").count() == 1
     ctx.set_offline(False)
     page.evaluate("window.dispatchEvent(new Event('online'))")
-    wait_until(page, "document.querySelectorAll('#mine-list li').length === 2", 20)
-    assert "0 in the outbox" in page.text_content("#main")
+    wait_until(page, "document.querySelector('#main').textContent.includes('0 in the outbox')", 20)
+    second = [r["id"] for r in service.readings_of(motor["id"])][1]
+    wait_until(page, f"!!document.querySelector(\"#mine-list li[data-id='{second}']\")", 10)
+    assert "(saved copy: offline)" not in page.text_content("#main")

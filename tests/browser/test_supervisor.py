@@ -133,8 +133,12 @@ def test_desk_review_keeps_the_place_steps_and_accepts_a_run(new_context, servic
     assert page.locator("#review-form input[name=decision]:checked").count() == 0  # nothing preselected
     page.click("#review-submit")
     assert "Choose a decision" in page.text_content("#review-error")
+    assert f"13 of {len(ids)}" in page.text_content(".log-steps")
+    page.wait_for_selector("#curve-views svg.curve-view")  # the screen has finished drawing
     page.click("#next-reading")
     wait_until(page, f"location.hash === '#/reading/{ids[13]}'")
+    # the next reading's own screen (its steps say 14 of 14) before pressing Previous on it
+    wait_until(page, f"(document.querySelector('.log-steps') || {{}}).textContent?.includes('14 of {len(ids)}')")
     page.click("#prev-reading")
     wait_until(page, f"location.hash === '#/reading/{far}'")
     page.click("#back-to-log")
@@ -176,8 +180,9 @@ def test_site_view_ranks_savings_and_keeps_defaults(new_context, service):
     page.click("#tabs a[data-screen=sites]")
     page.wait_for_selector("#site-pick")
     page.select_option("#site-pick", str(sid))
-    wait_until(page, f"document.querySelectorAll('#site-motors tbody tr').length === 2")
-    wait_until(page, f"location.hash === '#/sites/{sid}' && !!document.querySelector('#by-verdict')")
+    # the chosen site's own table (the first site's screen is replaced when the choice changes)
+    wait_until(page, "(document.querySelector('#site-motors') || {}).textContent?.includes('WF-CWP-1') && "
+                     "document.querySelectorAll('#site-motors tbody tr').length === 2")
     assert page.locator("#by-verdict li").count() >= 1
     candidates = [m["tag"] for m in overview["right_sizing"] if (m["right_size_savings_kwh"] or 0) > 0]
     assert page.locator("#right-sizing svg.savings rect.bar").count() == len(candidates)
