@@ -359,7 +359,18 @@ export async function renderCorrection(el, clientId, seq) {
 }
 
 // --- My readings ---------------------------------------------------------------------------------------
+let mineDraws = 0;
 export async function renderMine(el, _arg, seq) {
+  // the screen follows the outbox: a reading sent (or the network back) redraws it, never a stale count.
+  // Listening from the start, so a send that lands while this screen is still loading is not missed.
+  const redraw = () => {
+    window.removeEventListener("outbox-sent", redraw);
+    window.removeEventListener("online", redraw);
+    if (routeIsCurrent(seq)) renderMine(el, _arg, seq);
+  };
+  window.addEventListener("outbox-sent", redraw);
+  window.addEventListener("online", redraw);
+  const draw = ++mineDraws; // only the latest of overlapping redraws draws
   const date = localDate();
   let readings = null, note = "";
   try {
@@ -384,15 +395,8 @@ export async function renderMine(el, _arg, seq) {
     retakes = (await outbox.cacheGet("retakes")) || [];
   }
   if (!routeIsCurrent(seq)) return;
-  // the screen follows the outbox: a reading sent (or the network back) redraws it, never a stale count
-  const redraw = () => {
-    window.removeEventListener("outbox-sent", redraw);
-    window.removeEventListener("online", redraw);
-    if (routeIsCurrent(seq)) renderMine(el, _arg, seq);
-  };
-  window.addEventListener("outbox-sent", redraw);
-  window.addEventListener("online", redraw);
   const waiting = await outbox.all();
+  if (draw !== mineDraws) return;
   const answered = new Set(waiting.map((e) => e.body.supersedes).filter(Boolean));
   const open = retakes.filter((r) => !answered.has(r.id));
   const retakeList = open.length ? h("section", { class: "panel retake", "aria-labelledby": "retakes-h", id: "retakes" },
