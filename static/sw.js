@@ -4,7 +4,7 @@
 // deletes the caches of older versions (the outbox lives in IndexedDB and is never touched here).
 // API calls always go to the network; nothing with a status >= 400 is ever cached.
 
-const VERSION = "1.0.27"; // raise with every change to a precached file
+const VERSION = "1.0.30"; // raise with every change to a precached file
 const CACHE = `slipwise-page-${VERSION}`;
 const PRECACHE = [
   "/",
@@ -33,9 +33,9 @@ const PRECACHE = [
   "/icons/slipwise-512.png",
 ];
 // Shipped but deliberately not precached: screens that need the network anyway (registering a motor,
-// the supervisor's site view);
+// the supervisor's day log and site view);
 // the page says so offline. (tests/test_page_files.py reads both lists.)
-const NETWORK_ONLY = ["/js/register.js", "/js/sites.js"];
+const NETWORK_ONLY = ["/js/register.js", "/js/sites.js", "/js/daylog.js"];
 
 self.addEventListener("install", (event) => {
   event.waitUntil((async () => {

@@ -8,7 +8,6 @@ import { go, route, setRoutes } from "./router.js";
 import { refreshCount, sync } from "./sending.js";
 import { ctx, setReachable, showBanner, toast } from "./shell.js";
 import * as history from "./history.js";
-import * as sup from "./supervisor.js";
 import * as tech from "./technician.js";
 
 const USER_KEY = "slipwise.user"; // name and role only: offline, the page still knows who is working
@@ -38,11 +37,23 @@ setRoutes([
   [/^#\/mine$/, tech.renderMine],
   [/^#\/reading\/(\d+)$/, tech.renderReadingView],
   [/^#\/retake\/(\d+)$/, tech.renderRetake],
-  [/^#\/log$/, sup.renderLog],
+  [/^#\/log$/, renderDayLog],
   [/^#\/sites(?:\/(\d+))?$/, renderSiteView],
 ]);
 
 // --- screens owned here --------------------------------------------------------------------------
+/** The day log (supervisors): loaded when opened; it needs the network, so it is not precached. */
+async function renderDayLog(el, arg, seq) {
+  let screen;
+  try {
+    screen = await import("./daylog.js");
+  } catch {
+    clear(el, h("h1", { tabindex: "-1" }, "Day log"), h("p", { class: "panel" }, "Offline: the day's log needs the network."));
+    return;
+  }
+  return screen.renderLog(el, arg, seq);
+}
+
 /** A site's view (supervisors): its module loads when opened; it needs the network, so it is not precached. */
 async function renderSiteView(el, arg, seq) {
   let screen;

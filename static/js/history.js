@@ -8,7 +8,7 @@ import * as outbox from "./outbox.js";
 import { routeIsCurrent } from "./router.js";
 import { setReachable } from "./shell.js";
 
-const VERDICT_CLASS = { sound: "ok", watch: "warn", retake: "warn", act: "bad" };
+const VERDICT_CLASS = { sound: "ok", watch: "warn", retake: "bad", act: "bad" }; // as result.js VERDICTS
 
 /** GET with the saved copy as a fallback offline: {data, cached}. */
 async function getSaved(path, key) {
@@ -39,7 +39,7 @@ export async function lastVisits() {
 export function lastVisitLine(summary) {
   if (!summary || !summary.last_visit) return h("span", { class: "muted last-visit" }, "no visit yet");
   return h("span", { class: "last-visit" },
-    summary.verdict ? h("span", { class: ["verdict-chip", VERDICT_CLASS[summary.verdict]] }, summary.verdict) : null,
+    summary.verdict ? h("span", { class: ["verdict", "verdict-chip", VERDICT_CLASS[summary.verdict]] }, summary.verdict) : null,
     ` last visit ${summary.last_visit}`,
     summary.overdue ? h("strong", { class: "overdue" }, " · visit overdue") : null);
 }
@@ -104,7 +104,7 @@ function visitRow(v) {
   return h("tr", { class: [v.superseded_by && "superseded"] },
     h("td", {}, h("a", { href: `#/reading/${v.reading_id}` }, v.taken_at.replace("T", " ").slice(0, 16)),
       v.baseline ? h("span", { class: "baseline-mark" }, " baseline") : null),
-    h("td", {}, v.verdict ? h("span", { class: ["verdict-chip", VERDICT_CLASS[v.verdict]] }, v.verdict) : "–"),
+    h("td", {}, v.verdict ? h("span", { class: ["verdict", "verdict-chip", VERDICT_CLASS[v.verdict]] }, v.verdict) : "–"),
     h("td", {}, v.review || "not reviewed", v.superseded_by ? " · corrected" : ""),
     h("td", {}, num(v.load_pct), typeof v.load_low_pct === "number" ? ` (${num(v.load_low_pct, 0)}–${num(v.load_high_pct, 0)})` : ""),
     h("td", {}, num(v.current_unbalance_pct, 2), " / ", num(v.voltage_unbalance_pct, 2)),
