@@ -252,3 +252,19 @@ def test_history_figure_is_byte_stable_and_draws_only_panels_with_values():
     png = render_history_png(visits)
     assert png.startswith(b"\x89PNG") and render_history_png(visits) == png
     assert render_history_png([{"id": 1, "taken_date": "2024-01-10"}]) is None
+
+
+def test_a_review_after_the_sign_off_does_not_move_a_signed_certificates_baseline(tech, sup, motor):
+    """The history on a signed certificate is what was known at its sign-off: a later review of an earlier visit
+    (here the baseline sent back for a retake) would move the baseline today, not on the signed file."""
+    mid = motor["id"]
+    a = tech.post("/api/v1/readings", json=_visit_body(mid, "2024-01-10T09:00:00+01:00", 600, 1500, 1.2)).get_json()
+    assert sup.post(f"/api/v1/readings/{a['id']}/review", json={"decision": "accepted"}).status_code == 201
+    b = tech.post("/api/v1/readings", json=_visit_body(mid, "2024-07-10T09:00:00+02:00", 120, 200, 1.3)).get_json()
+    assert sup.post(f"/api/v1/readings/{b['id']}/review", json={"decision": "accepted"}).status_code == 201
+    signed = sup.get(f"/api/v1/readings/{b['id']}/certificate.pdf").data
+    assert "insulation falling" in _flat(_text(signed))
+    later = sup.post(f"/api/v1/readings/{a['id']}/review", json={"decision": "retake", "comment": "wrong range"})
+    assert later.status_code == 201, later.get_data(as_text=True)
+    assert tech.get(f"/api/v1/motors/{mid}/history").get_json()["baseline_reading_id"] == b["id"]   # today
+    assert sup.get(f"/api/v1/readings/{b['id']}/certificate.pdf").data == signed                     # the file
