@@ -195,3 +195,76 @@ def test_certificate_reads_the_record_as_the_engine_stores_it():
     assert "900.6 MΩ at 40 °C" in text and "900.564" not in text
     for words in ("MT-4471", "2027-03-31", "LR-0392", "2027-01-15"):
         assert words in text, words
+
+
+def _visit_body(mid, taken_at, ins_1min, ins_10min, vibration, **more):
+    # insulation needs the winding temperature (its `needs`); 20 °C throughout so the 40 °C values fall as read
+    return reading_body(mid, taken_at=taken_at, insulation_resistance_1min_mohm=ins_1min,
+                        insulation_resistance_10min_mohm=ins_10min, winding_temperature_c=20,
+                        insulation_test_voltage_v=500, vibration_velocity_mm_s=vibration, foundation="rigid", **more)
+
+
+def test_certificate_shows_this_motor_over_time_and_stays_the_same_when_later_visits_arrive(tech, sup, motor):
+    """Three visits, insulation falling: the section, the baseline and the change words from the history service
+    (the IEEE 43 trend mark of slipwise.physics.trend: a fall of more than half the baseline, here 600 -> 120 MΩ
+    read at the same temperature, 80 %); the first reading's signed certificate keeps its bytes."""
+    mid = motor["id"]
+    first = tech.post("/api/v1/readings", json=_visit_body(mid, "2024-01-10T09:00:00+01:00", 600, 1500, 1.2))
+    assert first.status_code == 201, first.get_data(as_text=True)
+    fid = first.get_json()["id"]
+    assert sup.post(f"/api/v1/readings/{fid}/review", json={"decision": "accepted"}).status_code == 201
+    first_pdf = sup.get(f"/api/v1/readings/{fid}/certificate.pdf").data
+    text = _flat(_text(first_pdf))
+    assert "This motor over time" in text and "First visit of this motor" in text
+    second = tech.post("/api/v1/readings", json=_visit_body(mid, "2024-07-10T09:00:00+02:00", 300, 660, 1.6))
+    third = tech.post("/api/v1/readings", json=_visit_body(mid, "2025-01-12T09:00:00+01:00", 120, 200, 2.1))
+    assert second.status_code == 201 and third.status_code == 201
+    # a later visit, stored and reviewed afterwards, does not touch the first reading's signed certificate
+    assert sup.get(f"/api/v1/readings/{fid}/certificate.pdf").data == first_pdf
+    tid = third.get_json()["id"]
+    history = tech.get(f"/api/v1/motors/{mid}/history").get_json()
+    codes = [c["code"] for c in history["visits"][2]["changes"]]
+    assert "insulation_falling" in codes
+    pdf = sup.get(f"/api/v1/readings/{tid}/certificate.pdf").data
+    text = _flat(_text(pdf))
+    assert "This motor over time" in text and "3 visits up to and including this reading" in text
+    assert f"Baseline: reading {fid} of 2024-01-10" in text
+    for code in codes:   # the history service's findings, as codes and words
+        assert code in text and code.replace("_", " ") in text, code
+    assert "Insulation resistance at 40 °C has fallen by 80 %" in text
+    # the second reading's certificate ends at the second visit, even now that a third exists
+    sec = _flat(_text(sup.get(f"/api/v1/readings/{second.get_json()['id']}/certificate.pdf").data))
+    assert "2 visits up to and including this reading" in sec and "2025-01-12" not in sec
+    pages = _save_pages(pdf, "over-time")
+    assert pages
+
+
+def test_history_figure_is_byte_stable_and_draws_only_panels_with_values():
+    from slipwise.web.picture import history_panels, render_history_png
+
+    visits = [{"id": 1, "taken_date": "2024-01-10", "baseline": True, "load_pct": 60.0, "load_low_pct": 52.0,
+               "load_high_pct": 68.0, "insulation_resistance_40c_mohm": None, "superseded_by": None,
+               "review_decision": "accepted"},
+              {"id": 2, "taken_date": "2024-07-10", "baseline": False, "load_pct": 64.0, "load_low_pct": 57.0,
+               "load_high_pct": 71.0, "insulation_resistance_40c_mohm": None, "superseded_by": None,
+               "review_decision": None}]
+    assert [p[0] for p in history_panels(visits)] == ["load_pct"]
+    png = render_history_png(visits)
+    assert png.startswith(b"\x89PNG") and render_history_png(visits) == png
+    assert render_history_png([{"id": 1, "taken_date": "2024-01-10"}]) is None
+
+
+def test_a_review_after_the_sign_off_does_not_move_a_signed_certificates_baseline(tech, sup, motor):
+    """The history on a signed certificate is what was known at its sign-off: a later review of an earlier visit
+    (here the baseline sent back for a retake) would move the baseline today, not on the signed file."""
+    mid = motor["id"]
+    a = tech.post("/api/v1/readings", json=_visit_body(mid, "2024-01-10T09:00:00+01:00", 600, 1500, 1.2)).get_json()
+    assert sup.post(f"/api/v1/readings/{a['id']}/review", json={"decision": "accepted"}).status_code == 201
+    b = tech.post("/api/v1/readings", json=_visit_body(mid, "2024-07-10T09:00:00+02:00", 120, 200, 1.3)).get_json()
+    assert sup.post(f"/api/v1/readings/{b['id']}/review", json={"decision": "accepted"}).status_code == 201
+    signed = sup.get(f"/api/v1/readings/{b['id']}/certificate.pdf").data
+    assert "insulation falling" in _flat(_text(signed))
+    later = sup.post(f"/api/v1/readings/{a['id']}/review", json={"decision": "retake", "comment": "wrong range"})
+    assert later.status_code == 201, later.get_data(as_text=True)
+    assert tech.get(f"/api/v1/motors/{mid}/history").get_json()["baseline_reading_id"] == b["id"]   # today
+    assert sup.get(f"/api/v1/readings/{b['id']}/certificate.pdf").data == signed                     # the file

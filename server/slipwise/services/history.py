@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import json
 from dataclasses import dataclass, field
-from datetime import date
+from datetime import date, datetime, timezone
 from typing import Any, Mapping
 
 import numpy as np
@@ -130,3 +130,36 @@ def site_overview(db: Database, site_id: int, today: date | None = None,
         last = standing[-1] if standing else None
         out.append({"motor": m, "history": h, "last": last})
     return SiteOverview(site, settings, out)
+
+
+def _instant(taken_at: str) -> datetime:
+    """``taken_at`` as an aware instant (UTC where the technician's clock gave no offset)."""
+    when = datetime.fromisoformat(taken_at)
+    return when if when.tzinfo is not None else when.replace(tzinfo=timezone.utc)
+
+
+def history_until(conn, reading: Mapping[str, Any], nameplate: Mapping[str, Any], as_of: Any = None,
+                  th: TrendThresholds | None = None) -> MotorHistory:
+    """A motor's visits as a reading's certificate sees them: evidence of its time, not of today.
+
+    Only readings taken at or before ``reading`` and received at or before it belong (the reading itself
+    included), so visits stored later never change its certificate. ``as_of`` (the sign-off's time; None for
+    a draft: now) fixes what the reviews and corrections were then: each visit's decision is its latest review
+    at or before ``as_of``, and a correction counts only if it is itself one of the visits kept. The vibration
+    class is read from the nameplate revision the reading used (``nameplate``), not the motor's current one.
+    """
+    when, received = _instant(reading["taken_at"]), reading["received_at"]
+    rows = [r for r in store_readings.reading_rows(conn, motor_id=reading["motor_id"])
+            if r["id"] == reading["id"] or (_instant(r["taken_at"]) <= when and r["received_at"] <= received)]
+    kept = {r["id"] for r in rows}
+    visits = []
+    for r in rows:
+        v = dict(r)
+        if v["superseded_by"] not in kept:
+            v["superseded_by"] = None
+        if as_of is not None:
+            decided = [x["decision"] for x in store_readings.review_rows(conn, r["id"]) if x["reviewed_at"] <= as_of]
+            v["decision"] = decided[-1] if decided else None
+        visits.append(v)
+    settings = settings_of(store_sites.settings_of_motor(conn, reading["motor_id"]))
+    return _history(nameplate, visits, settings, when.date(), th or TrendThresholds())

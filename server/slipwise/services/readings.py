@@ -135,15 +135,23 @@ class CertificateRecord:
     reading: ReadingRecord
     nameplate: RowMapping
     engine_record: dict
+    history: Any = None   # ``history.MotorHistory`` of the visits up to this reading (issue 11)
 
 
-def certificate_record(db: Database, reading_id: int) -> CertificateRecord:
-    """Everything one reading's certificate needs, read in one transaction."""
+def certificate_record(db: Database, reading_id: int, trend_thresholds: Any = None) -> CertificateRecord:
+    """Everything one reading's certificate needs, read in one transaction.
+
+    The motor's history stops at this reading and, once signed off, at what was known at the sign-off
+    (``history.history_until``): a signed certificate stays the same file when later visits are stored.
+    """
+    from .history import history_until
     with db.read() as conn:
         reading = _record(conn, reading_id)
         plate = store.nameplate_row(conn, reading_id)
+        sign_off = next((r["reviewed_at"] for r in reading.reviews if r["decision"] == "accepted"), None)
+        history = history_until(conn, reading.row, plate, sign_off, trend_thresholds)
     record = engine_record(plate, plate["tag"], json.loads(plate["inputs"]), plate["taken_at"])
-    return CertificateRecord(reading, plate, record)
+    return CertificateRecord(reading, plate, record, history)
 
 
 def interpret_reading(db: Database, inputs: Mapping[str, Any], taken_at: str | None, *,

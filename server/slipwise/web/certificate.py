@@ -462,6 +462,11 @@ def render_certificate(cert, *, address: str, picture_png: bytes | None, thresho
         pdf.image(io.BytesIO(picture_png), w=width * 0.9, x=pdf.l_margin + width * 0.05)
         para("The points are the stored result's; the curves are the motor's as the fitted circuit gives them.", 7.5)
 
+    # --- this motor over time (issue 11): the visits up to this reading, as the history service gave them
+    history = getattr(cert, "history", None)
+    if history is not None:
+        _over_time(pdf, heading, para, history, row["id"], width)
+
     # --- people, reviews, evidence
     heading("Tested and reviewed")
     table([("Tested by", _person_row(row["technician_name"], row["technician"]),
@@ -496,6 +501,40 @@ def render_certificate(cert, *, address: str, picture_png: bytes | None, thresho
             pdf.multi_cell(0, 4, f"review {r['id']} ({r['decision']}): {r['fingerprint'] or 'none'}",
                            new_x=XPos.LMARGIN, new_y=YPos.NEXT)
     return bytes(pdf.output())
+
+
+def _over_time(pdf, heading, para, history, reading_id: int, width: float) -> None:
+    """"This motor over time": trend charts of the visits up to this reading, the baseline, this reading's
+    change findings (``engine.history``'s, never judged again here)."""
+    from .picture import render_history_png
+
+    visits = history.visits
+    png = render_history_png(visits) if len(visits) >= 2 else None
+    if png is not None and pdf.get_y() > pdf.h - 125:
+        pdf.add_page()
+    heading("This motor over time")
+    if len(visits) < 2:
+        para("First visit of this motor: the baseline for later ones once it is accepted at review.")
+        return
+    base = next((v for v in visits if v.get("baseline")), None)
+    para(f"{len(visits)} visits up to and including this reading, from {visits[0]['taken_date']} to "
+         f"{visits[-1]['taken_date']}; later visits are not part of this certificate. "
+         + (f"Baseline: reading {base['id']} of {base['taken_date']} (the first accepted, not superseded)."
+            if base is not None else "No baseline yet: no earlier visit was accepted at review."), 8.5)
+    if png is not None:
+        pdf.image(io.BytesIO(png), w=width * 0.9, x=pdf.l_margin + width * 0.05)
+        para("Dashed line: the baseline. Square: this reading. Hollow: superseded or sent back (not compared).",
+             7.5)
+    mine = next((v for v in visits if v["id"] == reading_id), None)
+    changes = (mine or {}).get("changes") or []
+    words = "; ".join(f"{c['code'].replace('_', ' ')} ({c['code']})" for c in changes)
+    if not words:
+        words = ("none: this reading is the baseline" if mine is not None and mine.get("baseline") else
+                 "none" if base is not None and visits.index(base) < visits.index(mine) else
+                 "not compared (no baseline before it)")
+    para("Change from the baseline at this reading: " + words, 9, "B" if changes else "")
+    for c in changes:
+        para(f"• {c['text']}", 8.5)
 
 
 def _person(review: Mapping[str, Any]) -> str:

@@ -7,7 +7,7 @@ import json
 
 from urllib.parse import urlencode
 
-from flask import Blueprint, Response, g, request, url_for
+from flask import Blueprint, Response, current_app, g, request, url_for
 
 from slipwise.contract import MAX_ID
 from slipwise.contract.models import READING_NAMES, given_reading, ReadingInput, ReviewInput, parse_body, taken_at
@@ -145,7 +145,7 @@ def certificate(reading_id: int):
     """The reading's commissioning certificate: for supervisors, and for the technician who took it."""
     query(())
     st = state()
-    cert = services.certificate_record(st.db, reading_id)
+    cert = services.certificate_record(st.db, reading_id, current_app.extensions.get("slipwise_trend"))
     if g.user["role"] != "supervisor" and cert.reading.row["technician"] != g.user["username"]:
         raise ApiError(403, "forbidden", "a certificate is for supervisors and for the technician who took the "
                                          "reading")
