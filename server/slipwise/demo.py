@@ -96,8 +96,11 @@ def load(db, samples: Path, data_dir: Path) -> dict:
         by_tag.setdefault(tag, []).append(mid)
     users = {u["username"]: u for u in account_services.list_users(db)}
 
-    stored = replayed = 0
     skipped: list[str] = []
+    # the earlier visits first, as they happened: a motor's history (and the certificates that print it)
+    # counts only readings the record held before the one certified
+    visits = _load_visits(db, samples, motor_ids, by_tag, users, skipped)
+    stored = replayed = 0
     for i, row in enumerate(reading_rows, start=2):
         tag = row.get("tag", "")
         if row.get("site"):
@@ -122,7 +125,6 @@ def load(db, samples: Path, data_dir: Path) -> dict:
             continue
         stored += created
         replayed += not created
-    visits = _load_visits(db, samples, motor_ids, by_tag, users, skipped)
     return {"accounts": creds, "motors_added": made, "readings_added": stored, "readings_present": replayed,
             "skipped": skipped, "visits_added": visits, "site_settings_written": settings_changed}
 
