@@ -129,3 +129,22 @@ def test_the_cases_reach_each_state(analyzed):
     assert set(limit["limit_flags"].split(";")) >= {"insulation_low", "winding_resistance_unbalance",
                                                     "overload_setting_high", "vibration_high"}
     assert "overload_setting_high" in analyzed["star-delta on NEMA"]["flags"]
+
+
+def test_instrument_date_pattern_is_the_calendar_exactly():
+    """The instruments line's date pattern (also the OpenAPI document's) admits exactly the real dates of
+    2000-2099, leap days included, checked day by day against Python's datetime (the reference calendar):
+    the document must not admit a date the service refuses (2000-11-31 once slipped through)."""
+    import datetime
+    import re
+
+    from slipwise.contract.fields import _DATE_20XX
+
+    pattern = re.compile(f"^{_DATE_20XX}$")
+    real, day = set(), datetime.date(2000, 1, 1)
+    while day.year < 2100:
+        real.add(day.isoformat())
+        day += datetime.timedelta(days=1)
+    wrong = [t for t in (f"{y}-{m:02d}-{d:02d}" for y in range(2000, 2100) for m in range(1, 13) for d in range(1, 32))
+             if bool(pattern.match(t)) != (t in real)]
+    assert wrong == [] and len(real) == 36525

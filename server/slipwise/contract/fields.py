@@ -155,7 +155,11 @@ NAMEPLATE_FIELDS: tuple[str, ...] = ("tag",) + tuple(f.name for f in NAMEPLATE_N
 # name; serial; calibration due date - each of name and serial at least one visible character
 # (the visible character is spelled out, not \s: Python's and ECMA-262's \s differ)
 _PART = r"[^;\x00-\x1f\x7f-\x9f]*[^;\x00-\x20\x7f-\x9f][^;\x00-\x1f\x7f-\x9f]*"
-_INSTRUMENT_LINE = rf"^{_PART};{_PART};[ ]*(20[0-9]{{2}}-(0[1-9]|1[0-2])-(0[1-9]|[12][0-9]|3[01]))$"
+# a calendar date of this century exactly, leap days included, so the OpenAPI pattern admits no date the
+# service then refuses (2000-11-31 was one, found by the schema fuzzing)
+_DATE_20XX = (r"(20[0-9]{2}-(?:(?:0[13578]|1[02])-(?:0[1-9]|[12][0-9]|3[01])|(?:0[469]|11)-(?:0[1-9]|[12][0-9]|30)"
+              r"|02-(?:0[1-9]|1[0-9]|2[0-8]))|20(?:0[048]|[2468][048]|[13579][26])-02-29)")
+_INSTRUMENT_LINE = rf"^{_PART};{_PART};[ ]*{_DATE_20XX}$"
 # --- text ------------------------------------------------------------------
 _TEXT_REFUSED = frozenset({"Cc", "Cs"})   # tab and newline are let through where one_line is False
 TEXT_FIELDS: dict[str, TextField] = {f.name: f for f in (
