@@ -22,8 +22,29 @@ FLAG_ORDER = (
 )
 
 
+class RangedSettings:
+    """What a frozen dataclass of overridable limits shares: its names and the check of each value against
+    its ``RANGES`` entry (``Thresholds`` here, ``trend.TrendThresholds``)."""
+
+    RANGES: dict = {}
+
+    @classmethod
+    def names(cls) -> tuple[str, ...]:
+        return tuple(f.name for f in fields(cls))
+
+    def validate(self) -> list[tuple[str, str]]:
+        """``(field, message)`` for each value outside its allowed range."""
+        bad = []
+        for name in self.names():
+            value = getattr(self, name)
+            lo, hi = self.RANGES[name]
+            if not (isinstance(value, (int, float)) and np.isfinite(value) and lo <= value <= hi):
+                bad.append((name, f"{name} must be a number from {lo:g} to {hi:g}"))
+        return bad
+
+
 @dataclass(frozen=True)
-class Thresholds:
+class Thresholds(RangedSettings):
     """Flag thresholds. Every one can be overridden.
 
     Attributes
@@ -84,18 +105,9 @@ class Thresholds:
         "right_size_load_pct": (40.0, 100.0),   # issue 11
     }
 
-    @classmethod
-    def names(cls) -> tuple[str, ...]:
-        return tuple(f.name for f in fields(cls))
-
     def validate(self) -> list[tuple[str, str]]:
-        """``(field, message)`` for each value outside its allowed range."""
-        bad = []
-        for name in self.names():
-            value = getattr(self, name)
-            lo, hi = self.RANGES[name]
-            if not (isinstance(value, (int, float)) and np.isfinite(value) and lo <= value <= hi):
-                bad.append((name, f"{name} must be a number from {lo:g} to {hi:g}"))
+        """``(field, message)`` for each value outside its allowed range, and the two limits' order."""
+        bad = super().validate()
         if self.underloaded_pct >= self.overloaded_pct:
             bad.append(("underloaded_pct", "underloaded_pct must be below overloaded_pct"))
         return bad

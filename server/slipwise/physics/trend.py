@@ -24,13 +24,15 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass, fields
+from dataclasses import dataclass
 
 import numpy as np
 
+from .flags import RangedSettings
+
 
 @dataclass(frozen=True)
-class TrendThresholds:
+class TrendThresholds(RangedSettings):
     """What change from the baseline is worth a finding. Every one can be overridden.
 
     Attributes
@@ -79,19 +81,6 @@ class TrendThresholds:
         "current_unbalance_margin_pct": (0.1, 50.0),
     }
 
-    @classmethod
-    def names(cls) -> tuple[str, ...]:
-        return tuple(f.name for f in fields(cls))
-
-    def validate(self) -> list[tuple[str, str]]:
-        """``(field, message)`` for each value outside its allowed range."""
-        bad = []
-        for name in self.names():
-            value = getattr(self, name)
-            lo, hi = self.RANGES[name]
-            if not (isinstance(value, (int, float)) and np.isfinite(value) and lo <= value <= hi):
-                bad.append((name, f"{name} must be a number from {lo:g} to {hi:g}"))
-        return bad
 
 
 def _f(x):
