@@ -24,6 +24,28 @@ function applyTheme(theme) {
   btn.title = dark ? "Switch to the bright palette" : "Switch to the dim palette";
 }
 
+/**
+ * A screen in its own module, loaded when opened: the desk screens and registering a motor need the network
+ * anyway, so they are not precached (NETWORK_ONLY in sw.js); offline the page says so instead.
+ */
+function loadedWhenOpened(load, render, title, ...offline) {
+  return async (el, arg, seq) => {
+    let screen;
+    try {
+      screen = await load();
+    } catch {
+      clear(el, h("h1", { tabindex: "-1" }, title), h("p", { class: "panel" }, ...offline),
+        h("a", { class: "btn", href: "#/motors" }, "Back to motors"));
+      return;
+    }
+    return screen[render](el, arg, seq);
+  };
+}
+const renderDayLog = loadedWhenOpened(() => import("./daylog.js"), "renderLog", "Day log", "Offline: the day's log needs the network.");
+const renderSiteView = loadedWhenOpened(() => import("./sites.js"), "renderSites", "Sites", "Offline: the site view needs the network.");
+const renderRegister = loadedWhenOpened(() => import("./register.js"), "renderMotorForm", "Register a motor",
+  "Registering a motor needs the network: the server checks the nameplate. Readings of motors already on the list can be taken offline.");
+
 // --- routing -------------------------------------------------------------------------------------
 setRoutes([
   [/^#\/login$/, renderLogin],
@@ -42,43 +64,6 @@ setRoutes([
 ]);
 
 // --- screens owned here --------------------------------------------------------------------------
-/** The day log (supervisors): loaded when opened; it needs the network, so it is not precached. */
-async function renderDayLog(el, arg, seq) {
-  let screen;
-  try {
-    screen = await import("./daylog.js");
-  } catch {
-    clear(el, h("h1", { tabindex: "-1" }, "Day log"), h("p", { class: "panel" }, "Offline: the day's log needs the network."));
-    return;
-  }
-  return screen.renderLog(el, arg, seq);
-}
-
-/** A site's view (supervisors): its module loads when opened; it needs the network, so it is not precached. */
-async function renderSiteView(el, arg, seq) {
-  let screen;
-  try {
-    screen = await import("./sites.js");
-  } catch {
-    clear(el, h("h1", { tabindex: "-1" }, "Sites"), h("p", { class: "panel" }, "Offline: the site view needs the network."));
-    return;
-  }
-  return screen.renderSites(el, arg, seq);
-}
-
-/** Register a motor: its module loads when opened (it needs the network anyway, so it is not precached). */
-async function renderRegister(el, arg, seq) {
-  let screen;
-  try {
-    screen = await import("./register.js");
-  } catch {
-    clear(el, h("h1", { tabindex: "-1" }, "Register a motor"),
-      h("p", { class: "panel" }, "Registering a motor needs the network: the server checks the nameplate. Readings of motors already on the list can be taken offline."),
-      h("a", { class: "btn", href: "#/motors" }, "Back to motors"));
-    return;
-  }
-  return screen.renderMotorForm(el, arg, seq);
-}
 async function renderLogin(el) {
   const err = h("p", { class: "error", id: "login-error", role: "alert" });
   const user = h("input", { id: "login-user", name: "username", autocomplete: "username", autocapitalize: "none",
