@@ -91,7 +91,7 @@ def analyze_frame(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> p
     """Input frame plus every result column, in contract order."""
     cols = {c: frame[c].to_numpy() for c in frame.columns if c in C.INPUT_FIELDS}
     out = interpret_columns(cols, thresholds)
-    result = pd.DataFrame({c: out[c] for c in C.RESULT_COLUMNS})
+    result = _columns_frame({c: out[c] for c in C.RESULT_COLUMNS})
     # cautions per distinct combination of flags (as the findings), blank for a row not interpreted
     combo_cautions = np.array([cautions_cell({"findings": f}) for f in out["_combination_findings"]] + [""],
                               dtype=object)
@@ -113,6 +113,20 @@ def analyze_frame(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> p
     # the result columns stay last; the cautions (as in the export) come just before them
     keep = keep.reset_index(drop=True).assign(cautions=cautions)
     return pd.concat([keep, result], axis=1)
+
+
+def _columns_frame(columns: dict) -> pd.DataFrame:
+    """A frame holding the given 1-d numpy arrays as they are (no copy into a 2-d block)."""
+    make = getattr(getattr(pd.api, "internals", None), "create_dataframe_from_blocks", None)
+    arrays = list(columns.values())
+    n = len(arrays[0]) if arrays else 0
+    if make is None or not all(isinstance(a, np.ndarray) and a.ndim == 1 and len(a) == n for a in arrays):
+        return pd.DataFrame(columns)
+    # numbers as they are; text as the constructor would infer it (pandas' string type where it has one)
+    blocks = [(a.reshape(1, -1) if a.dtype != object else pd.Series(a, copy=False).array, np.array([j]))
+              for j, a in enumerate(arrays)]
+    blocks = [(b.reshape(1, -1) if isinstance(b, np.ndarray) and b.ndim == 1 else b, j) for b, j in blocks]
+    return make(blocks, index=pd.RangeIndex(n), columns=pd.Index(list(columns)))
 
 
 def _csv_frame(frame: pd.DataFrame) -> pd.DataFrame:

@@ -143,16 +143,33 @@ def _executor():
 
 
 def _interpret_chunked(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Thresholds):
-    """:func:`_interpret_valid` over chunks of :data:`CHUNK_ROWS` rows on the pool."""
+    """:func:`_interpret_valid` over chunks of :data:`CHUNK_ROWS` rows on the pool.
+
+    Each chunk writes its results into columns allocated once for every row (by the first
+    chunk done, under a lock), so the chunks' results are never concatenated afterwards.
+    """
     n = fitted.size
     if n <= CHUNK_ROWS:
         return _interpret_valid(plates, fitted, r, th)
-    bounds = [(a, min(a + CHUNK_ROWS, n)) for a in range(0, n, CHUNK_ROWS)]
-    jobs = [_executor().submit(_interpret_valid, plates, fitted[a:b], Parsed({k: v[a:b] for k, v in r.items()}), th)
-            for a, b in bounds]
-    parts = [job.result() for job in jobs]
-    res = {k: np.concatenate([part[0][k] for part in parts]) for k in parts[0][0]}
-    return res, np.concatenate([part[1] for part in parts])
+    res: dict = {}
+    mask = np.empty(n, dtype=np.int64)
+    lock = threading.Lock()
+
+    def run(a: int, b: int) -> None:
+        part, part_mask = _interpret_valid(plates, fitted[a:b], Parsed({k: v[a:b] for k, v in r.items()}), th)
+        with lock:
+            if not res:
+                res.update({k: np.empty(n, dtype=np.asarray(v).dtype) for k, v in part.items()})
+        for k, v in part.items():
+            if np.asarray(v).dtype != res[k].dtype:
+                raise TypeError(f"result column {k} changes type between chunks")
+            res[k][a:b] = v
+        mask[a:b] = part_mask
+
+    jobs = [_executor().submit(run, a, min(a + CHUNK_ROWS, n)) for a in range(0, n, CHUNK_ROWS)]
+    for job in jobs:
+        job.result()
+    return res, mask
 
 
 def _interpret_valid(plates: Parsed, fitted: np.ndarray, r: Parsed, th: Thresholds):

@@ -99,12 +99,53 @@ def _instruments(text: np.ndarray, dates: np.ndarray):
     return np.array(names, dtype=object)[codes], np.array(states, dtype=int)[codes]
 
 
+#: The fields whose value makes a row carry a sheet test; a row with none of them has every test
+#: not judged (the choices alone, such as ``starter`` or ``foundation``, judge nothing).
+_TEST_INPUT_NUMBERS = tuple(spec.name for spec in C.READING_TEST_NUMBERS)
+_TEST_INPUT_TEXTS = ("rotation_correct", "instruments")
+_TEST_FIELDS = _TEST_INPUT_NUMBERS + tuple(spec.name for spec in C.READING_CHOICES) + ("instruments",)
+
+
+def rows_with_tests(t: Parsed) -> np.ndarray:
+    """Per row: does it carry any sheet test (a test number, a direction of rotation, instruments)?"""
+    n = len(t[_TEST_INPUT_NUMBERS[0]])
+    has = np.zeros(n, dtype=bool)
+    for name in _TEST_INPUT_NUMBERS:
+        has |= ~np.isnan(t[name])
+    for name in _TEST_INPUT_TEXTS:
+        has |= t[name] != ""
+    return has
+
+
 def judge_tests(t: Parsed, pl, th: Thresholds, dates: np.ndarray) -> tuple[dict, dict, dict]:
     """Result columns, states by flag code, and extra facts for the words, for valid rows.
 
     ``pl(name)`` gives a nameplate value per row (``rated_voltage_v``, ``rated_current_a``,
     ``rated_kw``, ``is_nema``, ``service_factor``, ``service_factor_given``).
+
+    Only the rows that carry a test are judged; a row without any gives what judging it gives
+    (every number NaN, every state not judged, every text blank, whatever its nameplate): the
+    values of one such row judged with the others, repeated.
     """
+    n = len(dates)
+    has = rows_with_tests(t)
+    if has.all():
+        return _judge_tests(t, pl, th, dates)
+    # the rows with tests and one row without (the pattern every other row repeats)
+    take = np.append(np.flatnonzero(has), np.argmin(has))
+    sub = Parsed({k: t[k][take] for k in _TEST_FIELDS})
+    parts = _judge_tests(sub, lambda name: np.asarray(pl(name))[take], th, dates[take])
+    tested = take[:-1]
+
+    def spread(values):
+        out = np.full(n, values[-1], dtype=values.dtype)
+        out[tested] = values[:-1]
+        return out
+    return tuple({k: spread(np.asarray(v)) for k, v in part.items()} for part in parts)
+
+
+def _judge_tests(t: Parsed, pl, th: Thresholds, dates: np.ndarray) -> tuple[dict, dict, dict]:
+    """:func:`judge_tests` on every row given."""
     n = len(dates)
     ins = insulation.insulation(
         t["insulation_resistance_1min_mohm"], t["winding_temperature_c"], t["winding_type"], t["insulation_class"],

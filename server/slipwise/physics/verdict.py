@@ -76,6 +76,10 @@ def judge_maximum(value, band_high, maximum):
     return np.where(np.isnan(v) | np.isnan(hi) | np.isnan(m), NOT_JUDGED, state).astype(int)
 
 
+#: Above this many values :func:`choice` decides each distinct value once.
+_DECIDE_DISTINCT_ABOVE = 64
+
+
 def choice(value, name, allowed):
     """A categorical parameter (scalar or array of str) checked against ``allowed``.
 
@@ -85,7 +89,12 @@ def choice(value, name, allowed):
     ``NOT_JUDGED``). Raises ``ValueError`` naming the parameter and the allowed
     values when any other value is given.
     """
-    arr = np.char.strip(np.char.lower(np.asarray(value, dtype=str)))
+    arr = np.asarray(value, dtype=str)
+    if arr.size > _DECIDE_DISTINCT_ABOVE:
+        # a column of many rows holds few distinct values: each is decided once
+        distinct, inverse = np.unique(arr, return_inverse=True)
+        return choice(distinct, name, allowed)[inverse.reshape(-1)].reshape(arr.shape)
+    arr = np.char.strip(np.char.lower(arr))
     arr = np.where(np.isin(arr, ["none", "nan"]), "", arr)
     bad = sorted(set(np.unique(arr)) - set(allowed) - {""})
     if bad:
