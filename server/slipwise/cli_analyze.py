@@ -16,6 +16,7 @@ import pandas as pd
 
 from . import contract as C
 from .engine import InputError, interpret_columns, thresholds_from_mapping
+from .engine.findings import findings_text
 from .engine.records import cautions_cell, neutralise, result_column
 
 #: Columns carried through from the input untouched (site records, notes).
@@ -40,6 +41,10 @@ def add_analyze_parser(subparsers) -> argparse.ArgumentParser:
                         help="csv (default) or json (one JSON object per line)")
     parser.add_argument("--threshold", action="append", default=[], metavar="NAME=VALUE",
                         help="override a flag threshold, e.g. underloaded_pct=30 (repeatable)")
+    parser.add_argument("--findings-legend", metavar="FILE",
+                        help="write each row's findings and cautions as a short key (F1, F2, ...) and each "
+                             "key's texts once, in FILE (CSV: key, flags, limit_flags, findings, cautions); "
+                             "a large batch's output then stays small")
     parser.set_defaults(func=run_analyze)
     return parser
 
@@ -87,14 +92,38 @@ def _thresholds(pairs):
         raise UsageError(f"--threshold {exc.field}: {exc.message}") from None
 
 
+#: Columns of the legend ``--findings-legend`` writes.
+LEGEND_COLUMNS = ("key", "flags", "limit_flags", "findings", "cautions")
+
+
 def analyze_frame(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> pd.DataFrame:
     """Input frame plus every result column, in contract order."""
+    return _analyze(frame, thresholds, missing_motor, keyed=False)[0]
+
+
+def analyze_frame_keyed(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """:func:`analyze_frame` with ``findings`` and ``cautions`` as a key per row, and the legend of the keys.
+
+    A key (``F1``, ``F2``, ... in the order the rows first raise it) stands for one distinct pair of
+    findings and cautions texts; a row without findings keeps both cells blank, a row with findings but
+    no caution a blank ``cautions``. The legend has one row per key: :data:`LEGEND_COLUMNS`, the
+    texts exactly as the default output writes them in every row.
+    """
+    return _analyze(frame, thresholds, missing_motor, keyed=True)
+
+
+def _analyze(frame: pd.DataFrame, thresholds, missing_motor, keyed: bool):
     cols = {c: frame[c].to_numpy() for c in frame.columns if c in C.INPUT_FIELDS}
     out = interpret_columns(cols, thresholds)
-    result = _columns_frame({c: out[c] for c in C.RESULT_COLUMNS})
     # cautions per distinct combination of flags (as the findings), blank for a row not interpreted
     combo_cautions = np.array([cautions_cell({"findings": f}) for f in out["_combination_findings"]] + [""],
                               dtype=object)
+    legend = None
+    if keyed:
+        legend, combo_keys, combo_caution_keys = _legend(out, combo_cautions[:-1])
+        out["findings"] = combo_keys[out["_combination"]]
+        combo_cautions = combo_caution_keys
+    result = _columns_frame({c: out[c] for c in C.RESULT_COLUMNS})
     cautions = combo_cautions[out["_combination"]]
     if missing_motor is not None and missing_motor.any():
         idx = np.flatnonzero(missing_motor)
@@ -112,7 +141,34 @@ def analyze_frame(frame: pd.DataFrame, thresholds=None, missing_motor=None) -> p
     keep = frame.drop(columns=[c for c in frame.columns if c in result.columns or c == "cautions"])
     # the result columns stay last; the cautions (as in the export) come just before them
     keep = keep.reset_index(drop=True).assign(cautions=cautions)
-    return pd.concat([keep, result], axis=1)
+    return pd.concat([keep, result], axis=1), legend
+
+
+def _legend(out: dict, combo_cautions: np.ndarray):
+    """(legend frame, findings key per combination, cautions key per combination) for
+    :func:`analyze_frame_keyed`; each per-combination array ends with "" for a row not interpreted."""
+    count = len(combo_cautions)
+    combo_keys = np.full(count + 1, "", dtype=object)
+    caution_keys = np.full(count + 1, "", dtype=object)
+    # the first row of each combination gives its flag cells
+    combos, first = np.unique(out["_combination"], return_index=True)
+    first_row = dict(zip(combos.tolist(), first.tolist()))
+    keys: dict = {}
+    legend = {name: [] for name in LEGEND_COLUMNS}
+    for k in range(count):
+        text, caution = findings_text(out["_combination_findings"][k]), combo_cautions[k]
+        if not text and not caution:
+            continue
+        key = keys.get((text, caution))
+        if key is None:
+            key = keys[(text, caution)] = f"F{len(keys) + 1}"
+            i = first_row[k]
+            for name, value in (("key", key), ("flags", out["flags"][i]), ("limit_flags", out["limit_flags"][i]),
+                                ("findings", neutralise(text)), ("cautions", caution)):
+                legend[name].append(value)
+        combo_keys[k] = key
+        caution_keys[k] = key if caution else ""
+    return pd.DataFrame(legend, columns=list(LEGEND_COLUMNS), dtype=object), combo_keys, caution_keys
 
 
 def _columns_frame(columns: dict) -> pd.DataFrame:
@@ -171,7 +227,12 @@ def run_analyze(args) -> int:
         missing = None
         if args.motors:
             readings, missing = _join_motors(readings, _read_csv(args.motors, "motors"))
-        result = analyze_frame(readings, thresholds, missing)
+        result, legend = _analyze(readings, thresholds, missing, keyed=bool(args.findings_legend))
+        if legend is not None:
+            try:
+                legend.to_csv(args.findings_legend, index=False, lineterminator="\n", encoding="utf-8")
+            except OSError as exc:
+                raise UsageError(f"cannot write {args.findings_legend}: {exc.strerror}") from None
         if args.output:
             try:
                 with open(args.output, "w", encoding="utf-8", newline="") as fh:

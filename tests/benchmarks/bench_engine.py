@@ -5,7 +5,11 @@ circuit fits included, cold cache), their ratio, and the peak memory of the
 process. Goal on a 2-core machine: interpretation <= 1.0x the read time, peak
 memory <= 1.5 GB. Not a timed test: it prints figures.
 
-    .venv/bin/python tests/benchmarks/bench_engine.py [--rows 1000000] [--nameplates 1000]
+    .venv/bin/python tests/benchmarks/bench_engine.py [--rows 1000000] [--nameplates 1000] [--command-rows 200000]
+
+A second figure times the whole command (``slipwise analyze``: read the CSV, interpret, write the
+output) on ``--command-rows`` readings against pandas reading the same input and writing the same-shaped
+output, with the default output and with ``--findings-legend``, and prints the output sizes in MB.
 """
 
 from __future__ import annotations
@@ -25,7 +29,7 @@ import pandas as pd
 sys.path.insert(0, str(Path(__file__).resolve().parents[2] / "server"))
 
 from slipwise import engine  # noqa: E402
-from slipwise.cli_analyze import analyze_frame  # noqa: E402
+from slipwise.cli_analyze import add_analyze_parser, analyze_frame  # noqa: E402
 
 
 def make_frame(rows: int, nameplates: int, random_state: int = 7) -> pd.DataFrame:
@@ -71,10 +75,27 @@ def make_frame(rows: int, nameplates: int, random_state: int = 7) -> pd.DataFram
     return df
 
 
+def whole_command(path: Path, out_dir: Path, legend: bool) -> tuple[float, float]:
+    """``slipwise analyze`` in this process (read, interpret, write): seconds, and MB written (with the legend)."""
+    out = out_dir / ("keyed.csv" if legend else "default.csv")
+    argv = [str(path), "-o", str(out)] + (["--findings-legend", str(out_dir / "legend.csv")] if legend else [])
+    parser = argparse.ArgumentParser()
+    add_analyze_parser(parser.add_subparsers())
+    args = parser.parse_args(["analyze", *argv])
+    engine.clear_caches()
+    t0 = time.perf_counter()
+    args.func(args)
+    seconds = time.perf_counter() - t0
+    size = out.stat().st_size + ((out_dir / "legend.csv").stat().st_size if legend else 0)
+    return seconds, size / 1e6
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--rows", type=int, default=1_000_000)
     ap.add_argument("--nameplates", type=int, default=1000)
+    ap.add_argument("--command-rows", type=int, default=200_000,
+                    help="rows for the whole-command figure (read + interpret + write); 0 skips it")
     ap.add_argument("--json", metavar="PATH", help="also write the figures as JSON to PATH")
     args = ap.parse_args()
     frame = make_frame(args.rows, args.nameplates)
@@ -92,15 +113,56 @@ def main() -> None:
     t_interp = time.perf_counter() - t0
     errors = int((out["error"] != "").sum())
     peak_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+    del df, out
     figures = {
         "rows": args.rows, "nameplates": args.nameplates, "csv_read_s": round(t_read, 3),
         "interpret_s": round(t_interp, 3), "interpret_over_read": round(t_interp / t_read, 3),
         "peak_memory_mb": round(peak_mb, 1), "rows_with_error": errors,
         "goal": "interpret_over_read <= 1.0, peak_memory_mb <= 1536",
     }
+    if args.command_rows:
+        figures["whole_command"] = command_figures(args.command_rows, args.nameplates)
     print(json.dumps(figures, indent=2))
     if args.json:
         Path(args.json).write_text(json.dumps(figures, indent=2))
+
+
+def command_figures(rows: int, nameplates: int) -> dict:
+    """The whole command on ``rows`` readings against pandas reading the input and writing the same-shaped output.
+
+    The reference is what pandas alone spends on the same files: ``read_csv`` of the readings and
+    ``to_csv`` of the default output frame (the same rows, columns and texts). The command is timed
+    with the default output and with ``--findings-legend`` (findings as keys plus one legend file).
+    """
+    frame = make_frame(rows, nameplates)
+    with tempfile.TemporaryDirectory() as tmp:
+        tmp = Path(tmp)
+        path = tmp / "readings.csv"
+        frame.to_csv(path, index=False)
+        del frame
+        t0 = time.perf_counter()
+        df = pd.read_csv(path, keep_default_na=False, na_values=[""],
+                         dtype={c: str for c in ("tag", "supply", "driven_load", "design", "taken_at")})
+        t_read = time.perf_counter() - t0
+        shaped = analyze_frame(df)
+        del df
+        t0 = time.perf_counter()
+        shaped.to_csv(tmp / "pandas.csv", index=False)
+        t_write = time.perf_counter() - t0
+        pandas_mb = (tmp / "pandas.csv").stat().st_size / 1e6
+        del shaped
+        t_default, mb_default = whole_command(path, tmp, legend=False)
+        t_keyed, mb_keyed = whole_command(path, tmp, legend=True)
+    reference = t_read + t_write
+    return {
+        "rows": rows, "pandas_read_s": round(t_read, 3), "pandas_write_s": round(t_write, 3),
+        "pandas_output_mb": round(pandas_mb, 1),
+        "command_s": round(t_default, 3), "command_over_pandas": round(t_default / reference, 3),
+        "output_mb": round(mb_default, 1),
+        "command_findings_legend_s": round(t_keyed, 3),
+        "command_findings_legend_over_pandas": round(t_keyed / reference, 3),
+        "output_findings_legend_mb": round(mb_keyed, 1),
+    }
 
 
 if __name__ == "__main__":

@@ -98,3 +98,41 @@ def test_demo_file_exercises_every_flag(tmp_path):
     seen = set(";".join(frame["flags"]).split(";")) - {""}
     assert set(C.FLAG_CODES) <= seen, set(C.FLAG_CODES) - seen
     assert (frame["error"] != "").sum() == 2
+
+
+def test_findings_legend_keys_stand_for_the_same_texts(tmp_path):
+    """--findings-legend: findings and cautions as keys, each key's texts once in the legend (the demo day)."""
+    plain, keyed, legend_path = tmp_path / "plain.csv", tmp_path / "keyed.csv", tmp_path / "legend.csv"
+    assert run(SAMPLES / "plant_day.csv", "-o", plain).returncode == 1
+    proc = run(SAMPLES / "plant_day.csv", "-o", keyed, "--findings-legend", legend_path)
+    assert proc.returncode == 1 and "Traceback" not in proc.stderr
+    a = pd.read_csv(plain, keep_default_na=False, dtype=str)
+    b = pd.read_csv(keyed, keep_default_na=False, dtype=str)
+    legend = pd.read_csv(legend_path, keep_default_na=False, dtype=str)
+    # the same columns, and every cell but the two keyed columns as in the default output
+    assert list(a.columns) == list(b.columns)
+    others = [c for c in a.columns if c not in ("findings", "cautions")]
+    pd.testing.assert_frame_equal(a[others], b[others])
+    assert list(legend.columns) == ["key", "flags", "limit_flags", "findings", "cautions"]
+    assert legend["key"].is_unique and legend["key"].str.fullmatch(r"F[0-9]+").all()
+    texts = legend.set_index("key")
+    for i in range(len(a)):
+        key = b.loc[i, "findings"]
+        if a.loc[i, "findings"] == "" and a.loc[i, "cautions"] == "":
+            assert key == "" and b.loc[i, "cautions"] == ""
+            continue
+        assert texts.loc[key, "findings"] == a.loc[i, "findings"]
+        assert texts.loc[key, "cautions"] == a.loc[i, "cautions"]
+        assert b.loc[i, "cautions"] == (key if a.loc[i, "cautions"] else "")
+        assert texts.loc[key, "flags"] == a.loc[i, "flags"]
+        assert texts.loc[key, "limit_flags"] == a.loc[i, "limit_flags"]
+    # each distinct pair of texts has one key, in the order rows first raise it
+    pairs = a.loc[a["findings"] + a["cautions"] != "", ["findings", "cautions"]].drop_duplicates()
+    assert len(legend) == len(pairs)
+    assert list(b.loc[pairs.index, "findings"]) == [f"F{k}" for k in range(1, len(pairs) + 1)]
+    assert keyed.stat().st_size + legend_path.stat().st_size < plain.stat().st_size
+
+
+def test_findings_legend_unwritable_is_a_usage_error(tmp_path):
+    proc = run(SAMPLES / "plant_day.csv", "-o", tmp_path / "o.csv", "--findings-legend", tmp_path / "no" / "l.csv")
+    assert proc.returncode == 2 and "cannot write" in proc.stderr and "Traceback" not in proc.stderr
