@@ -136,12 +136,20 @@ def _analyze(frame: pd.DataFrame, thresholds, missing_motor, keyed: bool):
         result.loc[idx, "error_field"] = "tag"
         result.loc[idx, "engine_version"] = C.ENGINE_VERSION
         cautions[idx] = ""
-    result["poles"] = pd.array(np.where(np.isnan(result["poles"].to_numpy(dtype=float)), None,
-                                        result["poles"].to_numpy(dtype=float)), dtype="Int64")
+    result["poles"] = _whole_numbers(result["poles"].to_numpy(dtype=float))
     keep = frame.drop(columns=[c for c in frame.columns if c in result.columns or c == "cautions"])
     # the result columns stay last; the cautions (as in the export) come just before them
     keep = keep.reset_index(drop=True).assign(cautions=cautions)
     return pd.concat([keep, result], axis=1), legend
+
+
+def _whole_numbers(values: np.ndarray):
+    """Floats holding whole numbers (NaN blank) as pandas' nullable Int64."""
+    blank = np.isnan(values)
+    whole = np.where(blank, 0.0, values)
+    if np.array_equal(whole, np.trunc(whole)):
+        return pd.arrays.IntegerArray(whole.astype(np.int64), blank)
+    return pd.array(np.where(blank, None, values), dtype="Int64")   # refuses a fraction, as it always did
 
 
 def _legend(out: dict, combo_cautions: np.ndarray):

@@ -36,6 +36,13 @@ class Parsed(dict):
     """Parsed columns by contract name, plus derived values."""
 
 
+def filled(n: int, value, dtype=object) -> np.ndarray:
+    """``n`` copies of ``value``: ``np.full``'s result, several times faster for text (object) arrays."""
+    out = np.empty(n, dtype=dtype)
+    out.fill(value)
+    return out
+
+
 def column(cols: Mapping[str, Any], name: str, n: int):
     """Column ``name`` of ``cols`` as an array of ``n`` values (None when absent)."""
     value = cols.get(name)
@@ -45,7 +52,7 @@ def column(cols: Mapping[str, Any], name: str, n: int):
         value = value.to_numpy()
     arr = value if isinstance(value, np.ndarray) else np.asarray(value, dtype=object)
     if arr.ndim == 0:
-        arr = np.full(n, arr.item(), dtype=object)
+        arr = filled(n, arr.item())
     return arr
 
 
@@ -55,8 +62,8 @@ class RowErrors:
     """First error per row: message and field."""
 
     def __init__(self, n: int):
-        self.message = np.full(n, "", dtype=object)
-        self.field = np.full(n, "", dtype=object)
+        self.message = filled(n, "")
+        self.field = filled(n, "")
         self.bad = np.zeros(n, dtype=bool)
 
     def add(self, bad, field: str, make_message):
@@ -83,7 +90,7 @@ class RowErrors:
 def _cells(field: str, raw, n: int, errors: RowErrors):
     """Values of one contract field by the contract's cell rules; refusals recorded per row."""
     values, messages = parse_column(field, raw, wording="cell")
-    refused = messages != ""
+    refused = messages.astype(bool)     # a message is non-empty text where the cell is refused
     errors.add(refused, field, lambda i: messages[i])
     return values
 
@@ -108,7 +115,7 @@ def number_columns(specs, cols: Mapping[str, Any], n: int, errors: RowErrors, in
 def text_column(raw, n: int):
     """Trimmed text per row ("" for blank): a field that is carried, not judged (``taken_at``)."""
     if raw is None:
-        return np.full(n, "", dtype=object)
+        return filled(n, "")
     # decided per distinct value: a batch of a million readings holds few distinct times per site
     codes, uniques = pd.factorize(pd.Series(np.asarray(raw, dtype=object), dtype=object), use_na_sentinel=True)
     clean = np.array(["" if is_blank(v) or (isinstance(v, float) and math.isnan(v)) else trim(str(v))
@@ -119,13 +126,13 @@ def text_column(raw, n: int):
 def choice_column(raw, n: int, spec: C.ChoiceField, errors: RowErrors, upper: bool = False):
     """A choice field as its declared code ("" for blank or refused); any letter case is accepted."""
     if raw is None:
-        return np.full(n, "", dtype=object)
+        return filled(n, "")
     return _cells(spec.name, raw, n, errors)
 
 
 def tag_column(raw, n: int, errors: RowErrors):
     """The motor tag by the contract's text rules: required, visible characters, one line."""
-    tag = np.full(n, "", dtype=object) if raw is None else _cells("tag", raw, n, errors)
+    tag = filled(n, "") if raw is None else _cells("tag", raw, n, errors)
     errors.add(tag == "", "tag", lambda i: f"tag is required (1 to {C.TAG_MAX_CHARS} characters)")
     return tag
 

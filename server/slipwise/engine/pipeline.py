@@ -23,7 +23,7 @@ from ..physics.units import KILOWATT_W
 from .energy import energy_columns   # issue 11
 from .findings import describe, findings_text, limit_codes
 from .verdicts import judge
-from .inputs import Parsed, column, column_length
+from .inputs import Parsed, column, column_length, filled
 from .nameplate import group_nameplates, nameplates
 from .readings import parse_readings
 from .sheet import judge_tests, parse_tests, reading_dates
@@ -41,7 +41,7 @@ def _empty_results(n: int) -> dict:
     """Blank result columns for ``n`` rows (text "" and numbers NaN)."""
     out = {}
     for col in C.RESULT_COLUMNS:
-        out[col] = np.full(n, "", dtype=object) if col in C.TEXT_RESULT_COLUMNS else np.full(n, np.nan)
+        out[col] = filled(n, "") if col in C.TEXT_RESULT_COLUMNS else np.full(n, np.nan)
     return out
 
 
@@ -86,7 +86,7 @@ def _interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None) -
     readings["_date"] = reading_dates(column(cols, "taken_at", n), n)
 
     out = _empty_results(n) if not errors.ok.all() else {}
-    out["engine_version"] = np.full(n, C.ENGINE_VERSION, dtype=object)
+    out["engine_version"] = filled(n, C.ENGINE_VERSION)
     combo_per_row = np.full(n, -1, dtype=np.int64)
     codes: list = []
     finds: list = []

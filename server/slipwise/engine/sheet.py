@@ -23,7 +23,7 @@ from ..contract.cells import instrument_list
 from ..physics import insulation, protection, rotation, vibration, winding
 from ..physics import verdict as V
 from ..physics.flags import Thresholds
-from .inputs import Parsed, RowErrors, column, number_columns, choice_column
+from .inputs import Parsed, RowErrors, choice_column, column, filled, number_columns
 
 #: The state column of each test, and the flag code its state "beyond" raises.
 TEST_STATES = {
@@ -42,18 +42,24 @@ def parse_tests(cols: Mapping[str, Any], n: int, errors: RowErrors) -> Parsed:
     t = Parsed()
     number_columns(C.READING_TEST_NUMBERS, cols, n, errors, t)
     for spec in C.READING_CHOICES:
-        values = choice_column(column(cols, spec.name, n), n, spec, errors)
+        raw = column(cols, spec.name, n)
+        if raw is None and spec.default:
+            t[spec.name] = filled(n, spec.default)   # an absent column: its default on every row
+            continue
+        values = choice_column(raw, n, spec, errors)
         t[spec.name] = np.where(values == "", spec.default or "", values).astype(object) if spec.default else values
     for name in C.READING_TEXTS:
         raw = column(cols, name, n)
         if raw is None:
-            t[name] = np.full(n, "", dtype=object)
+            t[name] = filled(n, "")
         else:
             values, messages = C.parse_column(name, raw)
             errors.add(messages != "", name, lambda i, m=messages: m[i])
             t[name] = values
     # a value that cannot be judged without another: refused naming the missing field
     for spec in C.READING_TEST_NUMBERS:
+        if spec.needs and np.isnan(t[spec.name]).all():
+            continue          # no value, nothing needed (the common batch without this test)
         for other in spec.needs:
             missing = _blank(t[other])
             errors.add(~np.isnan(t[spec.name]) & missing, other,
@@ -74,7 +80,7 @@ def reading_dates(taken_at, n: int) -> np.ndarray:
     (the date of receipt) where it is blank or not an ISO date."""
     today = _dt.date.today()
     if taken_at is None:
-        return np.full(n, today, dtype=object)
+        return filled(n, today)
     codes, uniques = pd.factorize(pd.Series(np.asarray(taken_at, dtype=object), dtype=object))
     out = []
     for v in uniques:
@@ -138,7 +144,7 @@ def judge_tests(t: Parsed, pl, th: Thresholds, dates: np.ndarray) -> tuple[dict,
     tested = take[:-1]
 
     def spread(values):
-        out = np.full(n, values[-1], dtype=values.dtype)
+        out = filled(n, values[-1], values.dtype)
         out[tested] = values[:-1]
         return out
     return tuple({k: spread(np.asarray(v)) for k, v in part.items()} for part in parts)
