@@ -38,6 +38,7 @@ from ..physics.flags import FLAG_ORDER, Thresholds
 #: (``act`` before ``retake``: a supply or safety fact found beyond is never hidden
 #: behind a request to read again).
 VERDICT_WORDS = ("act", "retake", "watch", "sound")
+_VERDICT_TEXT = np.array(VERDICT_WORDS, dtype=object)
 #: State words of the per-quantity columns, by state code (not judged: blank).
 STATE_WORDS = np.array(["", "clear", "at_limit", "beyond"], dtype=object)
 #: The per-quantity state columns.
@@ -173,10 +174,10 @@ def judge(th: Thresholds, *, above, at_sync, consistent, basis_low, basis_high, 
         watch = watch | (state == V.AT_LIMIT)
     if "test_voltage_off" in facts:   # an insulation reading not comparable with IEEE 43's minimums
         watch = watch | np.asarray(facts["test_voltage_off"], dtype=bool)
-    verdict = np.where(act, "act", np.where(retake, "retake", np.where(watch, "watch", "sound")))
+    verdict = _VERDICT_TEXT[np.where(act, 0, np.where(retake, 1, np.where(watch, 2, 3)))]
 
     load_state = np.maximum(np.maximum(over, over_sf), under)
-    columns = {"verdict": verdict.astype(object)}
+    columns = {"verdict": verdict}
     for name, state in zip(STATE_COLUMNS, (load_state, breakdown, supply_st, v_unb, i_unb, start)):
         columns[name] = STATE_WORDS[np.asarray(state, dtype=int)]
     return States(flags, extra, columns)
