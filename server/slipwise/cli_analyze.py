@@ -187,10 +187,24 @@ def _columns_frame(columns: dict) -> pd.DataFrame:
     if make is None or not all(isinstance(a, np.ndarray) and a.ndim == 1 and len(a) == n for a in arrays):
         return pd.DataFrame(columns)
     # numbers as they are; text as the constructor would infer it (pandas' string type where it has one)
-    blocks = [(a.reshape(1, -1) if a.dtype != object else pd.Series(a, copy=False).array, np.array([j]))
+    blocks = [(a.reshape(1, -1) if a.dtype != object else _text_array(a), np.array([j]))
               for j, a in enumerate(arrays)]
     blocks = [(b.reshape(1, -1) if isinstance(b, np.ndarray) and b.ndim == 1 else b, j) for b, j in blocks]
     return make(blocks, index=pd.RangeIndex(n), columns=pd.Index(list(columns)))
+
+
+def _text_array(values: np.ndarray):
+    """An object array of str as the type pandas' constructor infers for it, wrapping it without a copy
+    where that type is pandas' own string array (checked: every value text), else as the constructor does."""
+    dtype = pd.Series(np.array(["x"], dtype=object)).dtype
+    string_array = getattr(pd.arrays, "StringArray", None)
+    if string_array is not None and isinstance(dtype, pd.StringDtype) and dtype.storage == "python" \
+            and pd.api.types.infer_dtype(values, skipna=False) == "string":
+        try:
+            return string_array(values, dtype=dtype)
+        except (TypeError, ValueError):
+            pass
+    return pd.Series(values, copy=False).array
 
 
 def _csv_frame(frame: pd.DataFrame) -> pd.DataFrame:

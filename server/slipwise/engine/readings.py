@@ -52,10 +52,11 @@ def parse_readings(cols: Mapping[str, Any], n: int, plate: Parsed, errors: RowEr
         bad_n = ~np.isnan(ns) & (r["speed_rpm"] >= 2.0 * ns)
         p_in_rated = plate["rated_kw"] * KILOWATT_W / plate["eta_used"]
         bad_p = ~np.isnan(r["power_kw"]) & (r["power_kw"] * KILOWATT_W > 5.0 * p_in_rated)
-    vfield = np.where(np.isnan(r["voltage_l12_v"]),
-                      np.where(np.isnan(r["voltage_l23_v"]), "voltage_l31_v", "voltage_l23_v"), "voltage_l12_v")
+    def vfield(i):   # the first voltage read on row i (worded only for a refused row)
+        return next((f for f in C.VOLTAGE_FIELDS[:2] if not np.isnan(r[f][i])), C.VOLTAGE_FIELDS[2])
+
     errors.add(bad_v, "voltage_l12_v",
-               lambda i: f"{vfield[i]}: the mean line voltage {v_mean[i]:g} V is outside "
+               lambda i: f"{vfield(i)}: the mean line voltage {v_mean[i]:g} V is outside "
                          f"{'5' if on_drive[i] else '50'} to 150 % of rated_voltage_v ({v_r[i]:g} V); "
                          "check the meter and the nameplate voltage")
     errors.add(bad_i, "current_l1_a",
