@@ -93,11 +93,17 @@ def reading_dates(taken_at, n: int) -> np.ndarray:
 
 def _instruments(text: np.ndarray, dates: np.ndarray):
     """(names of instruments whose calibration was due before the reading's date, state) per row."""
-    pairs = pd.Series([f"{d.isoformat()}\n{x}" for x, d in zip(text, dates)], dtype=object)
-    codes, uniques = pd.factorize(pairs)
+    # decided once per distinct (date, text) pair, coded from the two columns' own codes
+    day_codes, days = pd.factorize(pd.Series(dates, dtype=object))
+    text_codes, texts = pd.factorize(pd.Series(text, dtype=object))
+    if (day_codes < 0).any() or (text_codes < 0).any():      # a missing value: keyed by its text
+        codes, uniques = pd.factorize(pd.Series([f"{d.isoformat()}\n{x}" for x, d in zip(text, dates)], dtype=object))
+        pairs = [key.partition("\n")[::2] for key in uniques]
+    else:
+        codes, uniques = pd.factorize(day_codes.astype(np.int64) * len(texts) + text_codes)
+        pairs = [(days[k // len(texts)].isoformat(), str(texts[k % len(texts)])) for k in uniques.tolist()]
     names, states = [], []
-    for key in uniques:
-        day, _, value = key.partition("\n")
+    for day, value in pairs:
         items = instrument_list(value)
         late = [f"{name} ({serial}, due {due})" for name, serial, due in items if due < day]
         names.append("; ".join(late))
