@@ -29,8 +29,9 @@ from slipwise.web import create_app  # noqa: E402
 MOTOR = {"site": "Bench Works", "tag": "B-1", "rated_power_kw": 15, "rated_voltage_v": 400, "rated_current_a": 28.5,
          "rated_frequency_hz": 50, "rated_speed_rpm": 1460, "driven_load": "variable_torque"}
 PARTS = {  # (file suffix, function name) whose cumulative time is a part of the submission
-    "engine (interpret one reading)": ("services/interpretation.py", "interpret"),
-    "store: read back the stored record": ("services/readings.py", "_record"),
+    "engine (interpret one reading)": ("services/interpretation.py", "interpret_together"),
+    "store: read before (client_id, revision, site)": ("services/readings.py", "_read_before"),
+    "store: read back the stored record": ("store/readings.py", "reading_row"),
     "store: insert reading, flags": ("store/readings.py", "insert_reading"),
     "sign-in check (bearer token)": ("web/auth.py", "load_user"),
     "request parsing (pydantic)": ("web/readings.py", "parse_submission"),
@@ -83,8 +84,8 @@ def main() -> int:
     for label, (suffix, name) in PARTS.items():
         ct = sum(v[3] for (f, _, n), v in stats.items() if n == name and f.endswith(suffix))
         shares[label] = ct / total
-        print(f"   {label:40s} {100 * ct / total:5.1f} %")
-    print(f"   {'the rest (Flask, werkzeug, transactions)':40s} {100 * (1 - sum(shares.values())):5.1f} %")
+        print(f"   {label:48s} {100 * ct / total:5.1f} %")
+    print(f"   {'the rest (Flask, werkzeug, transactions)':48s} {100 * (1 - sum(shares.values())):5.1f} %")
     engine_calls = sum(v[1] for (f, _, _n), v in stats.items() if "/engine/" in f or "/physics/" in f) / args.count
     print(f"   ({engine_calls:.0f} engine and physics function calls per reading: numpy on arrays of one element)")
     if args.json:

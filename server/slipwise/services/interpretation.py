@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import threading
 from typing import Any, Mapping
 
 from slipwise.contract import NAMEPLATE_FIELDS
@@ -15,6 +16,116 @@ def interpret(record: Mapping[str, Any], thresholds: Any = None) -> dict:
         return interpret_one(record, thresholds)
     except InputError as e:
         raise ValidationError(e.message, e.field) from None
+
+
+_SCALARS = (str, int, float, bool, type(None))
+
+
+class _Together:
+    """Readings that arrive at the same time in one process, interpreted by one engine call.
+
+    The engine's cost for one reading is almost all fixed (a few hundred numpy calls on arrays of one
+    element); rows are independent (each row's result is the same whatever rows it is interpreted with).
+    The first thread to arrive interprets what is waiting; the others wait for their row, and the next
+    one waiting takes over when it is done. No thread waits for a batch to fill: a reading alone is
+    interpreted at once, as before.
+    """
+
+    def __init__(self) -> None:
+        self._lock = threading.Lock()
+        self._waiting: list[_Pending] = []
+        self._busy = False
+
+    def interpret(self, record: Mapping[str, Any], thresholds: Any) -> dict:
+        mine = _Pending(record, thresholds)
+        with self._lock:
+            self._waiting.append(mine)
+            lead = not self._busy
+            self._busy = True
+        if not lead:
+            mine.done.wait()
+            if not mine.lead:
+                return mine.answer()
+        # this thread interprets everything waiting now (its own row among them, unless an earlier
+        # batch answered it already), then hands over to a thread still waiting
+        try:
+            while not mine.answered:
+                with self._lock:
+                    batch, self._waiting = self._waiting, []
+                _run(batch)
+        finally:
+            with self._lock:
+                if self._waiting:
+                    nxt = self._waiting[0]
+                    nxt.lead = True
+                    nxt.done.set()
+                else:
+                    self._busy = False
+        return mine.answer()
+
+
+class _Pending:
+    __slots__ = ("record", "thresholds", "result", "error", "answered", "lead", "done")
+
+    def __init__(self, record, thresholds):
+        self.record, self.thresholds = record, thresholds
+        self.result = self.error = None
+        self.answered = self.lead = False
+        self.done = threading.Event()
+
+    def answer(self) -> dict:
+        if self.error is not None:
+            raise self.error
+        return self.result
+
+
+def _run(batch: list[_Pending]) -> None:
+    """Interpret ``batch``: rows of the same thresholds and fields in one engine call; answer each."""
+    from slipwise.engine import records as engine_records
+    from slipwise.engine.inputs import records_to_columns
+    from slipwise.engine.pipeline import interpret_columns
+    groups: dict[tuple, list[_Pending]] = {}
+    for p in batch:
+        plain = all(isinstance(v, _SCALARS) for v in p.record.values())
+        key = (id(p.thresholds), tuple(p.record)) if plain else (id(p),)
+        groups.setdefault(key, []).append(p)
+    try:
+        for rows in groups.values():
+            try:
+                if len(rows) > 1:
+                    out = interpret_columns(records_to_columns([p.record for p in rows]), rows[0].thresholds)
+                    for i, p in enumerate(rows):
+                        if out["error"][i]:
+                            p.error = ValidationError(out["error"][i], out["error_field"][i])
+                        else:
+                            p.result = engine_records.row_record(out, i)
+                    continue
+            except Exception:  # noqa: BLE001 - not expected: then each row alone, with its own error
+                pass
+            for p in rows:
+                if p.result is None and p.error is None:
+                    try:
+                        p.result = interpret(p.record, p.thresholds)
+                    except Exception as e:  # noqa: BLE001 - raised in the thread that asked
+                        p.error = e
+    finally:
+        for p in batch:
+            if p.result is None and p.error is None:
+                p.error = RuntimeError("the reading was not interpreted")
+            p.answered = True
+            if not p.lead:
+                p.done.set()
+
+
+_together = _Together()
+
+
+def interpret_together(record: Mapping[str, Any], thresholds: Any = None) -> dict:
+    """:func:`interpret`, sharing one engine call with the readings other threads interpret at the same time.
+
+    Same result, same errors (ValidationError naming the field) as :func:`interpret` for the record alone.
+    """
+    return _together.interpret(record, thresholds)
 
 
 def torque_speed(record: Mapping[str, Any], thresholds: Any = None) -> dict:

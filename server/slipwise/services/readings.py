@@ -28,7 +28,7 @@ from slipwise.store.schema import DECISIONS
 from slipwise.store.types import utcnow
 
 from . import sites
-from .interpretation import interpret
+from .interpretation import interpret, interpret_together
 from .records import Submission, engine_record, to_json
 
 
@@ -193,20 +193,13 @@ def _replay(conn, found, digest: str, client_id: str) -> ReadingRecord:
     return _record(conn, found.id)
 
 
-def submit_reading(db: Database, user: Mapping[str, Any], sub: Submission,
-                   thresholds: Any = None) -> tuple[ReadingRecord, bool]:
-    """Interpret and store a reading. Returns (reading, created).
-
-    ``created`` is False for a replay of a stored submission. Raises
-    ConflictError (same client_id, other content; superseding twice),
-    NotFoundError (motor or superseded reading), ValidationError (a correction
-    of another motor; input the engine refuses), before anything is written.
-    """
-    digest = sub.content_hash(user["id"])
+def _read_before(db: Database, sub: Submission, digest: str):
+    """(the stored reading when ``sub`` replays one, else None; the motor's latest revision; its site's
+    settings), read in one transaction before the engine runs. Raises what ``submit_reading`` documents."""
     with db.read() as conn:
         found = store.by_client_id(conn, sub.client_id)
         if found:
-            return _replay(conn, found, digest, sub.client_id), False
+            return _replay(conn, found, digest, sub.client_id), None, None
         revision = store_motors.latest_revision(conn, sub.motor_id)
         if revision is None:
             raise NotFoundError(f"no motor with id {sub.motor_id}", "motor_id")
@@ -218,9 +211,27 @@ def submit_reading(db: Database, user: Mapping[str, Any], sub: Submission,
             if old_motor != sub.motor_id:
                 raise ValidationError(f"reading {sub.supersedes} is of another motor; a correction must be of "
                                       "the same motor", "supersedes")
+    return None, revision, site
+
+
+def submit_reading(db: Database, user: Mapping[str, Any], sub: Submission,
+                   thresholds: Any = None) -> tuple[ReadingRecord, bool]:
+    """Interpret and store a reading. Returns (reading, created).
+
+    ``created`` is False for a replay of a stored submission. Raises
+    ConflictError (same client_id, other content; superseding twice),
+    NotFoundError (motor or superseded reading), ValidationError (a correction
+    of another motor; input the engine refuses), before anything is written.
+    """
+    digest = sub.content_hash(user["id"])
+    replayed, revision, site = _read_before(db, sub, digest)
+    if replayed is not None:
+        return replayed, False
     # a blank energy input takes the site's default; the value used is stored with the inputs
     used_inputs = sites.with_site_defaults(sub.inputs, site)
-    result = interpret(engine_record(revision, revision["motor_tag"], used_inputs, sub.taken_at), thresholds)
+    # readings submitted at the same moment share one engine call (the same result as each alone)
+    result = interpret_together(engine_record(revision, revision["motor_tag"], used_inputs, sub.taken_at),
+                                thresholds)
     now = utcnow()
     stored_inputs = dict(used_inputs)
     stored_inputs["taken_at"] = sub.taken_at
@@ -236,7 +247,10 @@ def submit_reading(db: Database, user: Mapping[str, Any], sub: Submission,
                                        result.get("flags") or ())
             audit.record(conn, user, "reading.supersede" if sub.supersedes else "reading.submit", "reading", rid,
                          {"client_id": sub.client_id, "motor_id": sub.motor_id, "supersedes": sub.supersedes})
-            return _record(conn, rid), True
+            # read back as stored; a reading inserted in this transaction has no review yet (a review
+            # needs the reading committed, and the write lock is ours until then)
+            row = store.reading_row(conn, rid)
+            return ReadingRecord(row, []), True
     except DuplicateError:
         with db.read() as conn:  # a racing twin won: a replay, or a second successor of the same reading
             found = store.by_client_id(conn, sub.client_id)

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import base64
+import functools
 import hashlib
 import hmac
 import re
@@ -10,7 +11,7 @@ import secrets
 from datetime import datetime, timedelta
 from typing import Any
 
-from sqlalchemy import Connection, delete, select, update
+from sqlalchemy import Connection, bindparam, delete, select, update
 from sqlalchemy.exc import IntegrityError
 from werkzeug.security import check_password_hash, generate_password_hash
 
@@ -151,10 +152,15 @@ def create_token(conn: Connection, username: str, label: str = "", actor: dict |
     return token
 
 
+@functools.lru_cache(maxsize=1)
+def _user_for_token_select():
+    # built once (every request with a bearer token runs it); the token's hash goes in as a parameter
+    return (select(users).join(api_tokens, api_tokens.c.user_id == users.c.id)
+            .where(api_tokens.c.token_hash == bindparam("token_hash"), users.c.active.is_(True)))
+
+
 def user_for_token(conn: Connection, token: str) -> dict | None:
-    q = (select(users).join(api_tokens, api_tokens.c.user_id == users.c.id)
-         .where(api_tokens.c.token_hash == token_hash(token), users.c.active.is_(True)))
-    row = conn.execute(q).mappings().first()
+    row = conn.execute(_user_for_token_select(), {"token_hash": token_hash(token)}).mappings().first()
     return _public(row) if row else None
 
 

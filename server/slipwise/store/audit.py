@@ -10,11 +10,13 @@ from sqlalchemy import Connection, RowMapping, select
 from .schema import audit_log, users
 from .types import utcnow
 
+_INSERT = audit_log.insert()   # built once; the values go in as parameters
+
 
 def record(conn: Connection, actor: Mapping[str, Any] | None, action: str, object_type: str,
            object_id: int | None, detail: Mapping[str, Any] | None = None) -> None:
     """Append one audit row in the caller's transaction (so it commits with the change)."""
-    conn.execute(audit_log.insert().values(
+    conn.execute(_INSERT, dict(
         at=utcnow(), actor_id=actor["id"] if actor else None,
         actor=actor["username"] if actor else "system", action=action, object_type=object_type,
         object_id=object_id, detail=json.dumps(dict(detail or {}), sort_keys=True, default=str)))

@@ -9,7 +9,7 @@ from __future__ import annotations
 from datetime import datetime
 from typing import Any, Mapping
 
-from sqlalchemy import Connection, RowMapping, func, select
+from sqlalchemy import Connection, RowMapping, bindparam, func, select
 from sqlalchemy.exc import IntegrityError
 
 from .errors import DuplicateError
@@ -73,12 +73,16 @@ def revision_rows(conn: Connection, motor_id: int) -> list[RowMapping]:
     return conn.execute(q).mappings().all()
 
 
+# built once (every submission runs it): composing a select costs more than running it on SQLite
+_LATEST_REVISION = (select(motor_revisions, motors.c.tag.label("motor_tag"))
+                    .join(motors, motors.c.id == motor_revisions.c.motor_id)
+                    .where(motor_revisions.c.motor_id == bindparam("motor_id"))
+                    .order_by(motor_revisions.c.revision.desc()).limit(1))
+
+
 def latest_revision(conn: Connection, motor_id: int) -> RowMapping | None:
     """The current revision row of a motor plus ``motor_tag``; None when there is no such motor."""
-    return conn.execute(select(motor_revisions, motors.c.tag.label("motor_tag"))
-                        .join(motors, motors.c.id == motor_revisions.c.motor_id)
-                        .where(motor_revisions.c.motor_id == motor_id)
-                        .order_by(motor_revisions.c.revision.desc()).limit(1)).mappings().first()
+    return conn.execute(_LATEST_REVISION, {"motor_id": motor_id}).mappings().first()
 
 
 def insert_motor(conn: Connection, site: int, tag: str, created_by: int | None, created_at: datetime) -> int:

@@ -100,15 +100,19 @@ def reading_row(conn: Connection, reading_id: int) -> RowMapping | None:
     return conn.execute(_one_reading_select(), {"reading_id": reading_id}).mappings().first()
 
 
+@functools.lru_cache(maxsize=1)
+def _review_rows_select():
+    return (select(reviews.c.id, reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at,
+                   users.c.username.label("reviewer"), users.c.full_name.label("reviewer_name"),
+                   users.c.role.label("reviewer_role"), reviews.c.fingerprint, reviews.c.chain_position)
+            .join(users, users.c.id == reviews.c.reviewer_id)
+            .where(reviews.c.reading_id == bindparam("reading_id")).order_by(reviews.c.id))
+
+
 def review_rows(conn: Connection, reading_id: int) -> list[RowMapping]:
     """Every review of a reading, oldest first: id, decision, comment, reviewed_at, reviewer (username),
     reviewer_name (full name), reviewer_role, fingerprint, chain_position."""
-    return conn.execute(
-        select(reviews.c.id, reviews.c.decision, reviews.c.comment, reviews.c.reviewed_at,
-               users.c.username.label("reviewer"), users.c.full_name.label("reviewer_name"),
-               users.c.role.label("reviewer_role"), reviews.c.fingerprint, reviews.c.chain_position)
-        .join(users, users.c.id == reviews.c.reviewer_id)
-        .where(reviews.c.reading_id == reading_id).order_by(reviews.c.id)).mappings().all()
+    return conn.execute(_review_rows_select(), {"reading_id": reading_id}).mappings().all()
 
 
 def open_retake_rows(conn: Connection, *, technician: str | None = None, limit: int = 10_000) -> list[RowMapping]:
@@ -211,15 +215,25 @@ def nameplate_row(conn: Connection, reading_id: int) -> RowMapping | None:
                         .where(readings.c.id == reading_id)).mappings().first()
 
 
+# Statements run on every submission are built once: composing one (and its cache key) costs more than
+# running it on SQLite. Their values go in as bound parameters.
+_BY_CLIENT_ID = select(readings.c.id, readings.c.content_hash).where(readings.c.client_id == bindparam("client_id"))
+_MOTOR_OF = select(readings.c.motor_id).where(readings.c.id == bindparam("reading_id"))
+_INSERT_READING = readings.insert()
+_INSERT_FLAGS = reading_flags.insert()
+_LOCK_HEAD = select(record_chain.c.length, record_chain.c.head).where(record_chain.c.id == 1).with_for_update()
+_ADVANCE_HEAD = (record_chain.update().where(record_chain.c.id == 1)
+                 .values(length=bindparam("new_length"), head=bindparam("new_head")))
+
+
 def by_client_id(conn: Connection, client_id: str):
     """(id, content_hash) of the reading stored under ``client_id``, or None."""
-    return conn.execute(select(readings.c.id, readings.c.content_hash)
-                        .where(readings.c.client_id == client_id)).first()
+    return conn.execute(_BY_CLIENT_ID, {"client_id": client_id}).first()
 
 
 def motor_of(conn: Connection, reading_id: int) -> int | None:
     """The motor id of a reading, or None when there is no such reading."""
-    return conn.execute(select(readings.c.motor_id).where(readings.c.id == reading_id)).scalar()
+    return conn.execute(_MOTOR_OF, {"reading_id": reading_id}).scalar()
 
 
 # --- writes --------------------------------------------------------------------
@@ -232,13 +246,13 @@ def insert_reading(conn: Connection, values: Mapping[str, Any], flags: Iterable[
     then unusable and must be rolled back.
     """
     try:
-        rid = conn.execute(readings.insert().values(**values)).inserted_primary_key[0]
+        rid = conn.execute(_INSERT_READING, dict(values)).inserted_primary_key[0]
     except IntegrityError:
         raise DuplicateError("a reading with this client_id, or superseding this reading, is stored",
                              "client_id") from None
     flags = sorted(set(flags))
     if flags:
-        conn.execute(reading_flags.insert(), [{"reading_id": rid, "flag": f} for f in flags])
+        conn.execute(_INSERT_FLAGS, [{"reading_id": rid, "flag": f} for f in flags])
     return rid
 
 
@@ -255,8 +269,7 @@ def lock_chain_head(conn: Connection) -> tuple[int, str | None]:
     first commits and then reads the head the first wrote. SQLite: write transactions begin with
     ``BEGIN IMMEDIATE`` and hold the database's one write lock already (no FOR UPDATE in SQLite).
     """
-    row = conn.execute(select(record_chain.c.length, record_chain.c.head)
-                       .where(record_chain.c.id == 1).with_for_update()).first()
+    row = conn.execute(_LOCK_HEAD).first()
     if row is None:  # only a database whose migration was interrupted by hand could lack it
         raise RuntimeError("the record_chain row is missing: run `slipwise db upgrade`")
     return int(row.length), row.head
@@ -264,7 +277,7 @@ def lock_chain_head(conn: Connection) -> tuple[int, str | None]:
 
 def advance_chain_head(conn: Connection, length: int, head: str) -> None:
     """Record the chain's new length and last fingerprint (after ``lock_chain_head`` in this transaction)."""
-    conn.execute(record_chain.update().where(record_chain.c.id == 1).values(length=length, head=head))
+    conn.execute(_ADVANCE_HEAD, {"new_length": length, "new_head": head})
 
 
 def chain_head(conn: Connection) -> tuple[int, str | None] | None:

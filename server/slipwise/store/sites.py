@@ -6,10 +6,11 @@ the latest row of a site is the one in force.
 
 from __future__ import annotations
 
+import functools
 from datetime import datetime
 from typing import Any, Mapping
 
-from sqlalchemy import Connection, RowMapping, func, select
+from sqlalchemy import Connection, RowMapping, bindparam, func, select
 
 from .schema import site_settings, sites, users
 
@@ -52,8 +53,14 @@ def insert_settings(conn: Connection, site_id: int, values: Mapping[str, Any], s
         visit_interval_months=values["visit_interval_months"], set_at=set_at, set_by=set_by)).inserted_primary_key[0]
 
 
+@functools.lru_cache(maxsize=1)
+def _motor_site_select():
+    # built once (every submission runs it): the site row of the motor's site, one statement
+    from .schema import motors
+    return _site_select().where(sites.c.id == select(motors.c.site_id).where(motors.c.id == bindparam("motor_id"))
+                                .scalar_subquery())
+
+
 def settings_of_motor(conn: Connection, motor_id: int) -> RowMapping | None:
     """The settings in force at a motor's site (the site row of :func:`site_row`), None without the motor."""
-    from .schema import motors
-    site = conn.execute(select(motors.c.site_id).where(motors.c.id == motor_id)).scalar()
-    return None if site is None else site_row(conn, site)
+    return conn.execute(_motor_site_select(), {"motor_id": motor_id}).mappings().first()
