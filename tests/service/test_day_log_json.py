@@ -6,6 +6,7 @@ from __future__ import annotations
 import json
 
 from slipwise.services import readings as reading_services
+import slipwise.web.readings as views
 from slipwise.web import render
 
 from .conftest import MOTOR, reading_body
@@ -58,7 +59,7 @@ def test_day_log_text_is_the_encoders_for_awkward_text(app, sup, tech):
                                              + "]}")
 
 
-def test_day_log_pieces_join_to_one_document(app, tech, motor):
+def test_day_log_pieces_join_to_one_document(app, tech, motor, monkeypatch):
     for k in range(5):
         tech.post("/api/v1/readings", json=reading_body(motor["id"], speed_rpm=1466 + k))
     rows = reading_services.day_log(app.extensions["slipwise"].db, date="2025-03-14")
@@ -70,4 +71,12 @@ def test_day_log_pieces_join_to_one_document(app, tech, motor):
     doc = json.loads(whole)
     assert doc["count"] == 5 and [r["id"] for r in doc["readings"]] == [r["id"] for r in rows]
     assert render.day_log_json([]) == '{"count":0,"readings":[]}'
+    # a day longer than one piece is streamed (no Content-Length), a short one is sent whole: the same text
+    whole_served = tech.get("/api/v1/readings?date=2025-03-14")
+    assert whole_served.headers["Content-Length"] == str(len(whole.encode("utf-8")))
+    assert whole_served.get_data(as_text=True) == whole
+    monkeypatch.setattr(views, "DAY_LOG_PIECE", 2)
+    streamed = tech.get("/api/v1/readings?date=2025-03-14")
+    assert "Content-Length" not in streamed.headers and streamed.headers["Content-Type"] == "application/json"
+    assert streamed.get_data(as_text=True) == whole
     assert json.loads(tech.get("/api/v1/readings?date=2001-01-01").get_data()) == {"count": 0, "readings": []}

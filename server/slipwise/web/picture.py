@@ -85,7 +85,7 @@ def render_torque_speed_svg(curve: Mapping[str, Any], title: str) -> bytes:
 
 _W, _LEFT, _RIGHT, _TOP, _PLOT_H = 750, 72, 22, 52, 340
 _FONT = 'font-family="DejaVu Sans, Verdana, Arial, sans-serif"'
-_MOTOR_LINES = (("torque_rated_v_nm", "#7a7a7a", 1.9, "7,3", "motor at rated voltage"),
+_CURVE_LINES = (("torque_rated_v_nm", "#7a7a7a", 1.9, "7,3", "motor at rated voltage"),
                 ("torque_measured_v_nm", "#1f5fa8", 2.8, None, "motor at measured voltage"),
                 ("load_torque_nm", "#b8641c", 2.2, None, "driven load"))
 
@@ -121,7 +121,7 @@ def _svg_picture(curve: Mapping[str, Any], title: str) -> str:
 
     speed = [_finite(x) for x in curve["speed_rpm"]]
     lines = [(key, color, width, dash, label, [_finite(y) for y in curve[key]])
-             for key, color, width, dash, label in _MOTOR_LINES]
+             for key, color, width, dash, label in _CURVE_LINES]
     op = (_finite(curve.get("operating_speed_rpm")), _finite(curve.get("operating_torque_nm")))
     bd = (_finite(curve.get("breakdown_speed_rpm")), _finite(curve.get("breakdown_torque_nm")))
     rated, sync = _finite(curve.get("rated_torque_nm")), _finite(curve.get("sync_speed_rpm"))

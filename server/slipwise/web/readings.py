@@ -34,6 +34,7 @@ SUBMISSION_FIELDS = frozenset(ReadingInput.model_fields)   # the accepted keys (
 LIST_LIMIT = 100_000
 LISTING_PAGE = 2_000      # readings per page of the listing unless limit says otherwise
 LISTING_LIMIT = 10_000
+DAY_LOG_PIECE = 500       # readings per piece of a streamed day's log
 
 
 def _json(text: str, status: int = 200) -> Response:
@@ -65,7 +66,9 @@ def day_log():
                    motor_id=int_param(args, "motor_id", 1, MAX_ID))
     limit = int_param(args, "limit", 1, LIST_LIMIT, LIST_LIMIT)
     rows = services.day_log(state().db, limit=limit, **filters)   # read whole before the answer starts
-    return Response(day_log_chunks(rows), mimetype="application/json")
+    if len(rows) <= DAY_LOG_PIECE:
+        return _json(day_log_json(rows))
+    return Response(day_log_chunks(rows, DAY_LOG_PIECE), mimetype="application/json")   # streamed, no length
 
 
 @bp.get("/retakes")
