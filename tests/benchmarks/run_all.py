@@ -11,7 +11,8 @@ Runs, each as its own process (so no run warms another's caches):
 - the page's start weight: the bytes of everything the page needs to start (index.html, what it links,
   the module graph of /js/app.js, the service worker and its precache list), as files on disk,
   uncompressed, as the server sends them;
-- bench_load.py: 60 s at 32 connections with the mix of submissions, pictures, day log and export;
+- bench_load.py: 60 s at 32 connections with each of two mixes (the API's: submissions, SVG pictures, full day
+  log, export; the page's: submissions, curve numbers, listing, one reading, export), then each request alone;
 - bench_submission_profile.py: where one submission's time goes (cProfile, in-process).
 
 The goals are the issues' (issue 2: engine; issue 3: service; issue 4: page; issue 5: load). The
@@ -155,6 +156,18 @@ def table(m: dict, engine: dict, service: dict, page: dict, load: dict, quick: b
     rows.append(("Load: throughput of the mix as a ratio of GET /health (same server, same run)", "reported",
                  f"{load['ratio']:.3f} ({load['rps']:.0f} vs {load['trivial_rps']:.0f} req/s; "
                  f"{load['submissions_per_s']:.0f} readings stored per second)", "–"))
+    page_mix = load.get("page_mix")
+    if page_mix:
+        pmix = ", ".join(f"{k.replace('_', ' ')} {v} %" for k, v in page_mix["mix_pct"].items())
+        rows.append((f"Load, the page's mix ({pmix}), same server: errors, missing, p50 / p99, throughput", "reported",
+                     f"{page_mix['errors']} errors of {page_mix['requests']:,}, {page_mix['acknowledged_missing']} "
+                     f"missing; {page_mix['p50_ms']:.0f} ms / {page_mix['p99_ms']:.0f} ms (max "
+                     f"{page_mix['max_ms']:.0f} ms); {page_mix['rps']:.0f} req/s, ratio {page_mix['ratio']:.3f}", "–"))
+    if load.get("alone"):
+        alone = "; ".join(f"{k.replace('_', ' ')} {a['rps']:.0f} req/s, p99 {a['p99_ms']:.0f} ms, one at a time "
+                          f"{a['sequential_median_ms']:.1f} ms" for k, a in load["alone"].items())
+        rows.append(("Load: each request type alone, same connections, and one request at a time (median)",
+                     "reported", alone, "–"))
     shares = ", ".join(f"{k} {100 * v:.0f} %" for k, v in profile["shares"].items())
     rows.append(("Submission profile (cProfile, in-process, no HTTP): where one submission's time goes", "reported",
                  f"{profile['submit_inprocess_ms']:.1f} ms per submission vs {profile['health_inprocess_ms']:.2f} ms "
@@ -178,9 +191,10 @@ def table(m: dict, engine: dict, service: dict, page: dict, load: dict, quick: b
         "Notes:",
         "",
         "- The load mix has no think time: 32 connections each send the next request as soon as the answer "
-        "arrives, so its latency is mostly queueing behind the busiest requests. A picture of a reading not drawn "
-        "before (the page shows one after every submission) is drawn with matplotlib and costs far more than a "
-        "submission; that is why the mix's throughput is a small fraction of the trivial endpoint's.",
+        "arrives, so its latency is mostly queueing behind the busiest requests (32 connections on 8 server "
+        "threads: the mean latency is about 32 / throughput). The API mix's pictures are SVG written directly from "
+        "the curve's numbers (matplotlib drew them until it held a worker's interpreter lock ~140 ms each); a "
+        "submission is now the largest share of the mix's time.",
         "- \"Stored as the load generator hung up\": submissions the server committed while wrk closed its "
         "connections at the end of the run; they were never acknowledged, and a real client would replay them "
         "with the same client_id and get 200.",
@@ -200,7 +214,7 @@ def main() -> int:
         if args.quick:
             eng_args, svc_args, load_args = (["--rows", "100000", "--nameplates", "200"],
                                              ["--seconds", "3", "--day-rows", "2000", "--export-rows", "10000"],
-                                             ["--seconds", "10", "--trivial-seconds", "3"])
+                                             ["--seconds", "10", "--trivial-seconds", "3", "--alone-seconds", "3"])
         else:
             eng_args, svc_args, load_args = [], [], []
         print("== engine", flush=True)

@@ -122,3 +122,64 @@ def test_picture_points_are_the_stored_result(app, tech, reading):
     assert c["operating_side"] == (result["operating_side"] or None) and c["measured_speed_rpm"] == 1475.0
     assert c["flags"] == result["flags"]
     assert tech.get("/api/v1/readings/98765/torque-speed.json").status_code == 404
+
+
+def _axis_maps(root) -> tuple:
+    """(speed [rpm] of an x pixel, torque [N·m] of a y pixel), from the first and last tick label of each axis."""
+    ns = "{http://www.w3.org/2000/svg}"
+    texts = [t for t in root.iter(ns + "text") if t.text and re.fullmatch(r"[\d.]+", t.text)]
+    x_ticks = [(float(t.get("x")), float(t.text)) for t in texts if t.get("text-anchor") == "middle"]
+    y_ticks = [(float(t.get("y")) - 4, float(t.text)) for t in texts if t.get("text-anchor") == "end"]
+
+    def linear(ticks):
+        (p0, v0), (p1, v1) = ticks[0], ticks[-1]
+        return lambda p: v0 + (p - p0) * (v1 - v0) / (p1 - p0)
+    return linear(x_ticks), linear(y_ticks)
+
+
+def test_svg_places_the_numbers_the_json_route_serves(tech, reading):
+    """The SVG is written from the same curve as GET .../torque-speed.json: its operating and breakdown markers
+    and every vertex of the motor's curve at measured voltage sit where those numbers fall on its own axes."""
+    rid = reading["id"]
+    c = tech.get(f"/api/v1/readings/{rid}/torque-speed.json").get_json()
+    svg = tech.get(f"/api/v1/readings/{rid}/torque-speed.svg").data
+    root = ET.fromstring(svg)
+    ns = "{http://www.w3.org/2000/svg}"
+    speed_of, torque_of = _axis_maps(root)
+    # the axes' scale: 2 decimals of a pixel on an axis of ~1600 rpm over ~650 px is ~0.05 rpm; torque alike
+    op = next(e for e in root.iter(ns + "circle") if e.get("class") == "operating_point")
+    assert abs(speed_of(float(op.get("cx"))) - c["operating_speed_rpm"]) < 0.05
+    assert abs(torque_of(float(op.get("cy"))) - c["operating_torque_nm"]) < 0.05
+    bd = next(e for e in root.iter(ns + "path") if e.get("class") == "breakdown_point")
+    apex_x, apex_y = (float(v) for v in bd.get("d")[1:].split("L")[0].split(","))
+    assert abs(speed_of(apex_x) - c["breakdown_speed_rpm"]) < 0.05
+    assert abs(torque_of(apex_y + 6.5) - c["breakdown_torque_nm"]) < 0.05   # the triangle's centre is the point
+    motor = next(e for e in root.iter(ns + "path") if e.get("class") == "torque_measured_v_nm")
+    vertices = [tuple(float(v) for v in p.split(",")) for p in re.split(r"[ML]", motor.get("d")) if p]
+    served = [(n, t) for n, t in zip(c["speed_rpm"], c["torque_measured_v_nm"]) if t is not None]
+    assert len(vertices) == len(served) == len(c["speed_rpm"])
+    for (px, py), (n, t) in zip(vertices, served):
+        assert abs(speed_of(px) - n) < 0.05 and abs(torque_of(py) - t) < 0.05
+
+
+def test_svg_escapes_text_and_needs_no_inline_style():
+    """A title is text, never markup; the picture carries no style attribute or element (its CSP allows none),
+    and the same curve gives the same bytes (the ETag depends on it)."""
+    from slipwise.web.picture import render_torque_speed_svg
+    speed = np.linspace(0.0, 1500.0, 5)
+    curve = {"speed_rpm": speed, "torque_rated_v_nm": np.array([200.0, 210.0, 250.0, 150.0, 0.0]),
+             "torque_measured_v_nm": np.array([190.0, 200.0, np.nan, 140.0, 0.0]),
+             "load_torque_nm": np.full(5, np.nan), "rated_torque_nm": 98.1, "sync_speed_rpm": 1500.0,
+             "operating_speed_rpm": None, "operating_torque_nm": None, "breakdown_speed_rpm": 1125.0,
+             "breakdown_torque_nm": 250.0}
+    svg = render_torque_speed_svg(curve, 'P&ID <script>alert("x")</script>\nsecond line')
+    assert svg == render_torque_speed_svg(curve, 'P&ID <script>alert("x")</script>\nsecond line')
+    root = ET.fromstring(svg)
+    text = svg.decode("utf-8")
+    assert "<script" not in text and "&lt;script&gt;" in text and "P&amp;ID" in text
+    assert " style=" not in text and "<style" not in text
+    ns = "{http://www.w3.org/2000/svg}"
+    paths = {e.get("class"): e.get("d") for e in root.iter(ns + "path") if e.get("class")}
+    assert "load_torque_nm" not in paths                      # an undefined curve is not drawn
+    assert paths["torque_measured_v_nm"].count("M") == 2      # a gap where the curve is undefined
+    assert "no operating point" in text and "operating_point" not in text

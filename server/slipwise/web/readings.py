@@ -23,7 +23,7 @@ from .auth import requires
 from .errors import ApiError
 from .params import date_param, flag_param, int_param, query, text_param
 from .picture import picture_title, render_torque_speed_png, render_torque_speed_svg
-from .render import curve_json, day_log_json, listing_json, reading_record_json, review_json
+from .render import curve_json, day_log_chunks, day_log_json, listing_json, reading_record_json, review_json
 from .security import SVG_CONTENT_SECURITY_POLICY, json_body
 from .state import state
 
@@ -34,6 +34,7 @@ SUBMISSION_FIELDS = frozenset(ReadingInput.model_fields)   # the accepted keys (
 LIST_LIMIT = 100_000
 LISTING_PAGE = 2_000      # readings per page of the listing unless limit says otherwise
 LISTING_LIMIT = 10_000
+DAY_LOG_PIECE = 500       # readings per piece of a streamed day's log
 
 
 def _json(text: str, status: int = 200) -> Response:
@@ -64,7 +65,10 @@ def day_log():
                    technician=text_param(args, "technician", 64),
                    motor_id=int_param(args, "motor_id", 1, MAX_ID))
     limit = int_param(args, "limit", 1, LIST_LIMIT, LIST_LIMIT)
-    return _json(day_log_json(services.day_log(state().db, limit=limit, **filters)))
+    rows = services.day_log(state().db, limit=limit, **filters)   # read whole before the answer starts
+    if len(rows) <= DAY_LOG_PIECE:
+        return _json(day_log_json(rows))
+    return Response(day_log_chunks(rows, DAY_LOG_PIECE), mimetype="application/json")   # streamed, no length
 
 
 @bp.get("/retakes")

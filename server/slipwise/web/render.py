@@ -12,7 +12,8 @@ from __future__ import annotations
 import math
 
 import json
-from typing import Any, Iterable, Mapping
+from json.encoder import encode_basestring as _quote
+from typing import Any, Iterable, Iterator, Mapping, Sequence
 
 from slipwise.contract import ENGINE_VERSION, READING_FIELDS, RESULT_COLUMNS
 from slipwise.services.motors import MotorRecord
@@ -32,16 +33,46 @@ def _review(row: Mapping[str, Any], fingerprint_key: str = "fingerprint") -> dic
             "fingerprint": row[fingerprint_key]}
 
 
+def _value(x: Any) -> str:
+    """One JSON value as ``_dumps`` writes it; strings, whole numbers and null without the encoder's set-up
+    (the same C string escaper ``json.dumps(ensure_ascii=False)`` uses)."""
+    if x is None:
+        return "null"
+    kind = type(x)
+    if kind is str:
+        return _quote(x)
+    if kind is int:
+        return int.__repr__(x)
+    return _dumps(x)
+
+
+def _latest_review_text(row: Mapping[str, Any]) -> str:
+    """``_dumps(_review(row, "review_fingerprint"))``, written directly (the day's log writes one per reading)."""
+    if row["decision"] is None:
+        return "null"
+    return (f'{{"decision":{_value(row["decision"])},"comment":{_value(row["comment"])},'
+            f'"reviewer":{_value(row["reviewer"])},"reviewer_name":{_value(row.get("reviewer_name") or None)},'
+            f'"reviewed_at":{_value(row["reviewed_at"].isoformat())},'
+            f'"fingerprint":{_value(row["review_fingerprint"])}}}')
+
+
 def reading_json(row: Mapping[str, Any]) -> str:
-    """One reading row (with its latest review) as a JSON object text."""
-    head = {"id": row["id"], "client_id": row["client_id"], "motor_id": row["motor_id"],
-            "motor_revision": row["motor_revision"], "motor_revision_id": row["motor_revision_id"],
-            "site": row["site"], "tag": row["tag"], "technician": row["technician"],
-            "technician_name": row["technician_name"], "taken_at": row["taken_at"],
-            "received_at": row["received_at"].isoformat(), "engine_version": row["engine_version"],
-            "supersedes": row["supersedes_id"], "superseded_by": row["superseded_by"],
-            "fingerprint": row["fingerprint"], "review": _review(row, "review_fingerprint")}
-    return _dumps(head)[:-1] + ',"inputs":' + served_inputs_text(row) + ',"result":' + served_result_text(row) + "}"
+    """One reading row (with its latest review) as a JSON object text.
+
+    Keys in this order: id, client_id, motor_id, motor_revision, motor_revision_id, site, tag, technician,
+    technician_name, taken_at, received_at, engine_version, supersedes, superseded_by, fingerprint, review,
+    inputs, result. Written as one format string (the day's log writes thousands): the same text as
+    ``_dumps`` of the mapping, which ``tests/service/test_day_log_json.py`` checks.
+    """
+    v = _value
+    return (f'{{"id":{v(row["id"])},"client_id":{v(row["client_id"])},"motor_id":{v(row["motor_id"])},'
+            f'"motor_revision":{v(row["motor_revision"])},"motor_revision_id":{v(row["motor_revision_id"])},'
+            f'"site":{v(row["site"])},"tag":{v(row["tag"])},"technician":{v(row["technician"])},'
+            f'"technician_name":{v(row["technician_name"])},"taken_at":{v(row["taken_at"])},'
+            f'"received_at":{v(row["received_at"].isoformat())},"engine_version":{v(row["engine_version"])},'
+            f'"supersedes":{v(row["supersedes_id"])},"superseded_by":{v(row["superseded_by"])},'
+            f'"fingerprint":{v(row["fingerprint"])},"review":{_latest_review_text(row)},'
+            f'"inputs":{served_inputs_text(row)},"result":{served_result_text(row)}}}')
 
 
 def served_inputs_text(row: Mapping[str, Any]) -> str:
@@ -75,8 +106,17 @@ def reading_record_json(record: ReadingRecord) -> str:
 
 def day_log_json(rows: Iterable[Mapping[str, Any]]) -> str:
     """``{"count": n, "readings": [...]}``."""
-    parts = [reading_json(r) for r in rows]
-    return '{"count":' + str(len(parts)) + ',"readings":[' + ",".join(parts) + "]}"
+    return "".join(day_log_chunks(list(rows)))
+
+
+def day_log_chunks(rows: Sequence[Mapping[str, Any]], per_chunk: int = 500) -> Iterator[str]:
+    """The text of :func:`day_log_json` in pieces of ``per_chunk`` readings, for a streamed response: a day of
+    thousands of full records (tens of MB) is never copied whole into one string and again into its bytes."""
+    yield '{"count":' + str(len(rows)) + ',"readings":['
+    for start in range(0, len(rows), per_chunk):
+        text = ",".join([reading_json(r) for r in rows[start:start + per_chunk]])
+        yield ("," + text) if start else text
+    yield "]}"
 
 
 LISTING_KEYS = ("id", "motor_id", "site", "tag", "technician", "technician_name", "taken_at", "superseded_by",
