@@ -189,7 +189,6 @@ def _columns_frame(columns: dict) -> pd.DataFrame:
     # numbers as they are; text as the constructor would infer it (pandas' string type where it has one)
     blocks = [(a.reshape(1, -1) if a.dtype != object else _text_array(a), np.array([j]))
               for j, a in enumerate(arrays)]
-    blocks = [(b.reshape(1, -1) if isinstance(b, np.ndarray) and b.ndim == 1 else b, j) for b, j in blocks]
     return make(blocks, index=pd.RangeIndex(n), columns=pd.Index(list(columns)))
 
 

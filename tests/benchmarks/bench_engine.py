@@ -90,6 +90,16 @@ def whole_command(path: Path, out_dir: Path, legend: bool) -> tuple[float, float
     return seconds, size / 1e6
 
 
+def written_and_read(frame: pd.DataFrame, path: Path) -> tuple[pd.DataFrame, float]:
+    """``frame`` written to ``path`` as CSV, then read back as ``analyze`` reads it; (the frame read, seconds to read)."""
+    frame.to_csv(path, index=False)
+    del frame
+    t0 = time.perf_counter()
+    df = pd.read_csv(path, keep_default_na=False, na_values=[""],
+                     dtype={c: str for c in ("tag", "supply", "driven_load", "design", "taken_at")})
+    return df, time.perf_counter() - t0
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--rows", type=int, default=1_000_000)
@@ -98,15 +108,9 @@ def main() -> None:
                     help="rows for the whole-command figure (read + interpret + write); 0 skips it")
     ap.add_argument("--json", metavar="PATH", help="also write the figures as JSON to PATH")
     args = ap.parse_args()
-    frame = make_frame(args.rows, args.nameplates)
     with tempfile.TemporaryDirectory() as tmp:
         path = Path(tmp) / "readings.csv"
-        frame.to_csv(path, index=False)
-        del frame
-        t0 = time.perf_counter()
-        df = pd.read_csv(path, keep_default_na=False, na_values=[""],
-                         dtype={c: str for c in ("tag", "supply", "driven_load", "design", "taken_at")})
-        t_read = time.perf_counter() - t0
+        df, t_read = written_and_read(make_frame(args.rows, args.nameplates), path)
     engine.clear_caches()
     t0 = time.perf_counter()
     out = analyze_frame(df)
@@ -134,16 +138,10 @@ def command_figures(rows: int, nameplates: int) -> dict:
     ``to_csv`` of the default output frame (the same rows, columns and texts). The command is timed
     with the default output and with ``--findings-legend`` (findings as keys plus one legend file).
     """
-    frame = make_frame(rows, nameplates)
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
         path = tmp / "readings.csv"
-        frame.to_csv(path, index=False)
-        del frame
-        t0 = time.perf_counter()
-        df = pd.read_csv(path, keep_default_na=False, na_values=[""],
-                         dtype={c: str for c in ("tag", "supply", "driven_load", "design", "taken_at")})
-        t_read = time.perf_counter() - t0
+        df, t_read = written_and_read(make_frame(rows, nameplates), path)
         shaped = analyze_frame(df)
         del df
         t0 = time.perf_counter()
