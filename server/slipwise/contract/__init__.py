@@ -11,11 +11,11 @@ spreadsheets and scripts depend on them. Extend, never rename.
 * :mod:`.page` - the declaration as the page reads it (``static/fields.json``).
 """
 
-from .cells import (AMBIGUOUS_PATTERN, NUMBER_PATTERN, TRIM_CHARS, is_blank, parse_choice, parse_column,
-                    parse_number, parse_text, parse_value, trim)
+from .cells import (AMBIGUOUS_PATTERN, NUMBER_PATTERN, TRIM_CHARS, distinct_values, is_blank, parse_choice,
+                    parse_column, parse_number, parse_text, parse_value, trim)
 from .errors import FieldError
 from .fields import *  # noqa: F401,F403  (every declared name stays importable from slipwise.contract)
 from .fields import __all__ as _field_names
 
-__all__ = ["AMBIGUOUS_PATTERN", "FieldError", "NUMBER_PATTERN", "TRIM_CHARS", "is_blank", "parse_choice",
-           "parse_column", "parse_number", "parse_text", "parse_value", "trim", *_field_names]
+__all__ = ["AMBIGUOUS_PATTERN", "FieldError", "NUMBER_PATTERN", "TRIM_CHARS", "distinct_values", "is_blank",
+           "parse_choice", "parse_column", "parse_number", "parse_text", "parse_value", "trim", *_field_names]

@@ -260,9 +260,18 @@ def parse_value(field: str, raw: Any) -> Any:
 
 
 # --------------------------------------------------------------------------- vectorised
-def _distinct(raw) -> tuple[np.ndarray, list]:
-    """(code per row, distinct values): code -1 for a missing cell (None or NaN)."""
-    arr = np.asarray(raw, dtype=object)
+def distinct_values(raw) -> tuple[np.ndarray, list]:
+    """(code per row, distinct values in order of first appearance): code -1 for a missing cell (None or NaN).
+
+    ``pandas.factorize``'s answer; below :data:`_SMALL` rows (one API record) a dict gives it
+    without pandas' set-up cost, which is most of a single reading's parsing time.
+    """
+    arr = raw if isinstance(raw, np.ndarray) else np.asarray(raw, dtype=object)
+    if arr.dtype.kind in "iub" and len(arr) > _SMALL:
+        codes, uniques = pd.factorize(arr)           # whole numbers (codes, bit masks): no object copy
+        return codes, uniques.tolist()
+    if arr.dtype != object:
+        arr = arr.astype(object)
     if len(arr) <= _SMALL:
         # one API record or a short file: a dict beats pandas' set-up cost
         index: dict = {}
@@ -297,7 +306,7 @@ def parse_column(field: str, raw, wording: str = "cell") -> tuple[np.ndarray, np
                 messages[i] = word(spec, Refusal("range", values[i]))
             values[bad] = np.nan
             return values, messages
-        codes, uniques = _distinct(arr)
+        codes, uniques = distinct_values(arr)
         out_u, msg_u = np.full(len(uniques) + 1, np.nan), np.full(len(uniques) + 1, "", dtype=object)
         word = cell_message if wording == "cell" else number_message
         for k, v in enumerate(uniques):
@@ -308,7 +317,7 @@ def parse_column(field: str, raw, wording: str = "cell") -> tuple[np.ndarray, np
             except Refusal as r:
                 msg_u[k] = word(spec, r)
         return out_u[codes], msg_u[codes]
-    codes, uniques = _distinct(raw)
+    codes, uniques = distinct_values(raw)
     out_u, msg_u = np.full(len(uniques) + 1, "", dtype=object), np.full(len(uniques) + 1, "", dtype=object)
     for k, v in enumerate(uniques):
         if isinstance(v, (float, np.floating)) and math.isnan(v) or is_blank(v):

@@ -117,7 +117,7 @@ def text_column(raw, n: int):
     if raw is None:
         return filled(n, "")
     # decided per distinct value: a batch of a million readings holds few distinct times per site
-    codes, uniques = pd.factorize(pd.Series(np.asarray(raw, dtype=object), dtype=object), use_na_sentinel=True)
+    codes, uniques = C.distinct_values(raw)
     clean = np.array(["" if is_blank(v) or (isinstance(v, float) and math.isnan(v)) else trim(str(v))
                       for v in uniques] + [""], dtype=object)
     return clean[codes]          # code -1 (missing) picks the trailing ""

@@ -103,7 +103,8 @@ def _interpret_columns(cols: Mapping[str, Any], thresholds: Thresholds | None) -
         res["supply_zone"] = _ZONE_TEXT[res.pop("supply_zone_code")]
         res["operating_side"] = _SIDE_TEXT[res.pop("operating_side_code")]
         res["efficiency_class"] = plates["_valid"]["efficiency_class"][fitted]
-        combo, combinations = pd.factorize(mask)
+        combo, combinations = C.distinct_values(mask)
+        combinations = np.array(combinations, dtype=np.int64)
         codes, finds = describe(combinations, th)
         for col, values in res.items():
             if all_valid:

@@ -81,7 +81,7 @@ def reading_dates(taken_at, n: int) -> np.ndarray:
     today = _dt.date.today()
     if taken_at is None:
         return filled(n, today)
-    codes, uniques = pd.factorize(pd.Series(np.asarray(taken_at, dtype=object), dtype=object))
+    codes, uniques = C.distinct_values(taken_at)
     out = []
     for v in uniques:
         try:
@@ -94,14 +94,14 @@ def reading_dates(taken_at, n: int) -> np.ndarray:
 def _instruments(text: np.ndarray, dates: np.ndarray):
     """(names of instruments whose calibration was due before the reading's date, state) per row."""
     # decided once per distinct (date, text) pair, coded from the two columns' own codes
-    day_codes, days = pd.factorize(pd.Series(dates, dtype=object))
-    text_codes, texts = pd.factorize(pd.Series(text, dtype=object))
+    day_codes, days = C.distinct_values(dates)
+    text_codes, texts = C.distinct_values(text)
     if (day_codes < 0).any() or (text_codes < 0).any():      # a missing value: keyed by its text
-        codes, uniques = pd.factorize(pd.Series([f"{d.isoformat()}\n{x}" for x, d in zip(text, dates)], dtype=object))
+        codes, uniques = C.distinct_values([f"{d.isoformat()}\n{x}" for x, d in zip(text, dates)])
         pairs = [key.partition("\n")[::2] for key in uniques]
     else:
-        codes, uniques = pd.factorize(day_codes.astype(np.int64) * len(texts) + text_codes)
-        pairs = [(days[k // len(texts)].isoformat(), str(texts[k % len(texts)])) for k in uniques.tolist()]
+        codes, uniques = C.distinct_values(day_codes.astype(np.int64) * len(texts) + text_codes)
+        pairs = [(days[k // len(texts)].isoformat(), str(texts[k % len(texts)])) for k in uniques]
     names, states = [], []
     for day, value in pairs:
         items = instrument_list(value)

@@ -185,7 +185,7 @@ def fit_circuit(rated_output_w, rated_voltage_v, rated_current_a, rated_frequenc
     budget = rated_loss_budget(p_out, eta, slip, fixed_share, fw_share)
     p_core, p_fw, p_cu1 = budget.core_w, budget.friction_windage_w, budget.stator_w
     r1 = p_cu1 / (3.0 * i_r ** 2)
-    phi = np.arccos(np.clip(pf, 0.0, 1.0))
+    phi = np.arccos(np.minimum(np.maximum(pf, 0.0), 1.0))
     i1 = i_r * (np.cos(phi) - 1j * np.sin(phi))
 
     t_rated = p_out / omega_rated

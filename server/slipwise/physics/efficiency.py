@@ -216,7 +216,7 @@ def operating_losses_w(budget: LossBudget, flux_ratio, frequency_ratio, speed_ra
     numeric
         Total losses [W].
     """
-    s = np.clip(np.asarray(slip, dtype=float), 0.0, 0.999)
+    s = np.minimum(np.maximum(np.asarray(slip, dtype=float), 0.0), 0.999)
     core, fw, stator = scaled_losses_w(budget, flux_ratio, frequency_ratio, speed_ratio, current_ratio)
     rotor = rotor_copper_loss_w(s, np.asarray(output_w, dtype=float) + fw)
     return core + fw + stator + rotor

@@ -63,7 +63,7 @@ def rotor_resistance_ratio(load_pu, minutes_running):
     time (NaN) is taken as a fully warm rotor here; the cold case belongs in
     the band (see :func:`slip_method`).
     """
-    load_pu = np.clip(np.asarray(load_pu, dtype=float), 0.0, 2.0)
+    load_pu = np.minimum(np.maximum(np.asarray(load_pu, dtype=float), 0.0), 2.0)
     t = np.asarray(minutes_running, dtype=float)
     warm_fraction = np.where(np.isnan(t), 1.0, 1.0 - np.exp(-t / ROTOR_THERMAL_TIME_MIN))
     temp = AMBIENT_DEGC + ROTOR_RISE_RATED_K * load_pu ** 2 * warm_fraction
@@ -181,7 +181,7 @@ def slip_method(slip_rpm, rated_slip_rpm, flux_ratio, speed_ratio, rated_power_k
         t_low = torque * np.exp(-half_low)
         t_high = torque * np.exp(half_high) * np.maximum(thermal, 1.0)
     speed_ratio = np.asarray(speed_ratio, dtype=float)
-    torque_est = Estimate(*(np.clip(a, 0.0, None) for a in (torque, t_low, t_high)))
+    torque_est = Estimate(*(np.maximum(a, 0.0) for a in (torque, t_low, t_high)))
     output_est = Estimate(*(a * speed_ratio for a in torque_est))
     return torque_est, output_est
 
@@ -251,7 +251,7 @@ def current_method(current_a, rated_current_a, no_load_current_a, rated_no_load_
     # model error in quadrature with the half-widths above
     low = value - np.sqrt((value - low) ** 2 + CURRENT_MODEL_ERROR_PU ** 2)
     high = value + np.sqrt((high - value) ** 2 + CURRENT_MODEL_ERROR_PU ** 2)
-    return Estimate(np.clip(value, 0, None), np.clip(low, 0, None), np.clip(high, 0, None))
+    return Estimate(np.maximum(value, 0.0), np.maximum(low, 0.0), np.maximum(high, 0.0))
 
 
 def input_power_w(voltage_v, current_a, power_factor):
@@ -320,7 +320,7 @@ def input_power_method(input_w, input_accuracy_pct, core_loss_w, friction_windag
     core = np.asarray(core_loss_w, dtype=float)
     fw = np.asarray(friction_windage_w, dtype=float)
     cu1 = np.asarray(stator_loss_w, dtype=float)
-    s = np.clip(np.asarray(slip, dtype=float), 0.0, 1.0)
+    s = np.minimum(np.maximum(np.asarray(slip, dtype=float), 0.0), 1.0)
     p_rated = np.asarray(rated_output_w, dtype=float)
 
     def out(pin, kfix, kcu):
@@ -329,7 +329,7 @@ def input_power_method(input_w, input_accuracy_pct, core_loss_w, friction_windag
     value = out(p_in, 1.0, 1.0)
     low = out(p_in * (1 - acc), fixed_loss_band[1], stator_loss_band[1])
     high = out(p_in * (1 + acc), fixed_loss_band[0], stator_loss_band[0])
-    return Estimate(*(np.clip(a, 0.0, None) for a in (value, low, high)))
+    return Estimate(*(np.maximum(a, 0.0) for a in (value, low, high)))
 
 
 def widen(estimate: Estimate, factor) -> Estimate:
@@ -381,7 +381,7 @@ def fuse(estimates):
         half_lo = 2.0 * np.sqrt(1.0 / np.where(ok, 1.0 / s_lo_open ** 2, 0.0).sum(axis=0))
         half_hi = 2.0 * np.sqrt(1.0 / np.where(ok, 1.0 / s_hi ** 2, 0.0).sum(axis=0))
     value = np.where(wsum > 0, value, np.nan)
-    fused = Estimate(np.clip(value, 0, None), np.clip(value - half_lo, 0, None), value + half_hi)
+    fused = Estimate(np.maximum(value, 0.0), np.maximum(value - half_lo, 0.0), value + half_hi)
 
     m = v.shape[0]
     # pair (a, b) with a above b: a's low side against b's high side, both directions at once

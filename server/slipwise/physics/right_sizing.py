@@ -213,11 +213,12 @@ def right_sizing(shaft_output_kw, shaft_output_low_kw, shaft_output_high_kw,
     eta_new = _f(eta_new_pct) / 100.0
     h = operating_hours_per_year_h
     central = right_size_savings_kwh(shaft_output_kw, h, efficiency_pu, eta_new)
-    corners = [_f(right_size_savings_kwh(p, h, e, eta_new))
-               for p in (shaft_output_low_kw, shaft_output_high_kw)
-               for e in (efficiency_low_pu, efficiency_high_pu)]
-    low = np.minimum(np.minimum(corners[0], corners[1]), np.minimum(corners[2], corners[3]))
-    high = np.maximum(np.maximum(corners[0], corners[1]), np.maximum(corners[2], corners[3]))
+    # the four corners (load end, efficiency end) in one call, stacked on a leading axis
+    p_lo, p_hi, e_lo, e_hi, h_b, eta_b = np.broadcast_arrays(*(_f(x) for x in (
+        shaft_output_low_kw, shaft_output_high_kw, efficiency_low_pu, efficiency_high_pu, h, eta_new)))
+    corners = _f(right_size_savings_kwh(np.stack((p_lo, p_lo, p_hi, p_hi)), h_b,
+                                        np.stack((e_lo, e_hi, e_lo, e_hi)), eta_b))
+    low, high = corners.min(axis=0), corners.max(axis=0)        # NaN in any corner gives NaN, as before
     with np.errstate(divide="ignore", invalid="ignore"):
         load_pct = 100.0 * _f(shaft_output_kw) / _f(rated)
     return RightSizing(rated, _out(load_pct), eta_new_pct, central, _out(low), _out(high))

@@ -234,7 +234,7 @@ def load_torque(speed_rpm, law, operating_speed_rpm, operating_torque, sync_spee
         variable = variable_torque(n, n0, t0)
         constant = t0 * np.ones_like(n)
         power = np.minimum(t0 * n0 / np.maximum(n, 1e-9), 3.0 * t0)
-        ramp = np.clip(1.0 - n / (BREAKAWAY_SPEED_PU * ns), 0.0, 1.0)
+        ramp = np.minimum(np.maximum(1.0 - n / (BREAKAWAY_SPEED_PU * ns), 0.0), 1.0)
         breakaway = t0 + (np.fmax(np.asarray(breakaway_torque, dtype=float), t0) - t0) * ramp
     return np.select([law == "variable_torque", law == "constant_torque", law == "constant_power",
                       law == "high_breakaway"], [variable, constant, power, breakaway], np.nan)

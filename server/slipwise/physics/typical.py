@@ -36,11 +36,11 @@ def typical_power_factor(rated_power_kw, poles):
     """
     p_kw = np.asarray(rated_power_kw, dtype=float)
     poles = np.asarray(poles, dtype=float)
-    base = np.interp(np.log(np.clip(p_kw, _PF_KW[0], _PF_KW[-1])), np.log(_PF_KW), _PF_4POLE)
+    base = np.interp(np.log(np.minimum(np.maximum(p_kw, _PF_KW[0]), _PF_KW[-1])), np.log(_PF_KW), _PF_4POLE)
     shift = np.select([poles <= 2, poles <= 4, poles <= 6, poles <= 8],
                       [_PF_POLE_SHIFT[2], _PF_POLE_SHIFT[4], _PF_POLE_SHIFT[6], _PF_POLE_SHIFT[8]],
                       _PF_POLE_SHIFT[8] - 0.01 * (poles - 8))
-    return np.clip(base + shift, 0.45, 0.92)
+    return np.minimum(np.maximum(base + shift, 0.45), 0.92)
 
 
 #: Share of the rated-point losses that does not depend on load (core loss
@@ -152,7 +152,7 @@ def saturated_no_load_current(rated_no_load_current_a, flux_ratio):
         value = i0r * phi_safe ** k_c
         a, b = i0r * phi_safe ** k_lo, i0r * phi_safe ** k_hi
         low, high = np.fmin(a, b), np.fmax(a, b)
-    return Estimate(*(np.clip(x, 0.0, None) for x in (value, low, high)))
+    return Estimate(*(np.maximum(x, 0.0) for x in (value, low, high)))
 
 
 # --------------------------------------------------------------------------- breakdown torque
@@ -234,7 +234,7 @@ def minimum_breakdown_torque_pct(rated_power_kw, poles, design):
     hp = p * KILOWATT_W / HORSEPOWER_W
     with np.errstate(invalid="ignore"):
         # kW equivalents of hp ratings are rounded (0.75 kW = 1.006 hp): 2 % counts as the rating
-        row = np.clip(np.searchsorted(_NEMA_HP, hp * (1.0 - 0.02), side="left"), 0, _NEMA_HP.size - 1)
+        row = np.minimum(np.searchsorted(_NEMA_HP, hp * (1.0 - 0.02), side="left"), _NEMA_HP.size - 1)
 
     def nema(table):
         first = np.array([table[np.flatnonzero(np.isfinite(table[:, c]))[0], c]
@@ -244,7 +244,7 @@ def minimum_breakdown_torque_pct(rated_power_kw, poles, design):
         return np.where(np.isfinite(v), v, IEC_BREAKDOWN_FLOOR_PCT)
 
     with np.errstate(invalid="ignore"):
-        irow = np.clip(np.searchsorted(_IEC_KW, p * (1.0 - 1e-9), side="left"), 0, _IEC_KW.size - 1)
+        irow = np.minimum(np.searchsorted(_IEC_KW, p * (1.0 - 1e-9), side="left"), _IEC_KW.size - 1)
     iec = _IEC_N_BREAKDOWN_PCT[irow, col]
     out = np.select([np.isin(d, ("A", "B")), d == "C", d == "D", np.isin(d, ("N", "H"))],
                     [nema(_NEMA_AB_BREAKDOWN_PCT), nema(_NEMA_C_BREAKDOWN_PCT),
