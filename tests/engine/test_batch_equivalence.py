@@ -60,3 +60,24 @@ def test_frame_holds_the_engine_values(batch):
         assert same(values, out[col]), col
     # text columns keep the type the pandas constructor gives them
     assert frame["findings"].dtype == pd.DataFrame({"x": out["findings"]})["x"].dtype
+
+
+def test_reading_without_tests_alone_is_the_same_whichever_motor_was_judged_first(batch):
+    """One reading at a time (a submission) reuses the judged pattern of a row without tests; it must not
+    matter which motor's row made it: each bare row alone, the pattern made cold by that very row, equals
+    the same row alone after every other motor's bare row has gone before it."""
+    from slipwise.engine import sheet
+    cols = {c: batch[c].to_numpy() for c in batch.columns if c in C.INPUT_FIELDS}
+    has = np.array([batch.loc[i, [c for c in TEST_FIELDS if c in batch.columns]].notna().any()
+                    for i in range(len(batch))])
+    bare = [i for i in range(len(batch)) if not has[i]]
+    assert len(bare) >= 20
+    warm = {}
+    for i in reversed(bare):                  # the pattern kept from the last motor of the day
+        warm[i] = interpret_columns({c: v[i:i + 1] for c, v in cols.items()})
+    assert sheet._UNTESTED, "a row without tests keeps its judged pattern"
+    for i in bare:
+        clear_caches()                        # cold: this row judges its own pattern
+        cold = interpret_columns({c: v[i:i + 1] for c, v in cols.items()})
+        for col in C.RESULT_COLUMNS:
+            assert same(cold[col], warm[i][col]), (i, col, cold[col][0], warm[i][col][0])

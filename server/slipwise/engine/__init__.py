@@ -17,10 +17,17 @@ with plain columns or records. One concern per module:
 from ..physics.flags import Thresholds
 from .curve import torque_speed_curve
 from .inputs import InputError
-from .nameplate import clear_caches
+from .nameplate import clear_caches as _clear_nameplates
+from .sheet import forget_untested as _forget_untested
 from .pipeline import CHUNK_ROWS, interpret_columns
 from .records import interpret_one, interpret_records
 from .thresholds import thresholds_from_mapping
 
 __all__ = ["InputError", "Thresholds", "interpret_columns", "interpret_one", "interpret_records",
            "torque_speed_curve", "thresholds_from_mapping", "CHUNK_ROWS", "clear_caches"]
+
+
+def clear_caches() -> None:
+    """Forget every fitted circuit, parsed nameplate and kept pattern (benchmarks and tests start cold)."""
+    _clear_nameplates()
+    _forget_untested()

@@ -129,6 +129,16 @@ def rows_with_tests(t: Parsed) -> np.ndarray:
     return has
 
 
+#: The judged pattern of one row without tests, by thresholds (see :func:`judge_tests`); a few kept.
+_UNTESTED: dict = {}
+_UNTESTED_KEPT = 16
+
+
+def forget_untested() -> None:
+    """Forget the kept patterns of rows without tests."""
+    _UNTESTED.clear()
+
+
 def judge_tests(t: Parsed, pl, th: Thresholds, dates: np.ndarray) -> tuple[dict, dict, dict]:
     """Result columns, states by flag code, and extra facts for the words, for valid rows.
 
@@ -145,9 +155,17 @@ def judge_tests(t: Parsed, pl, th: Thresholds, dates: np.ndarray) -> tuple[dict,
         return _judge_tests(t, pl, th, dates)
     # the rows with tests and one row without (the pattern every other row repeats)
     take = np.append(np.flatnonzero(has), np.argmin(has))
-    sub = Parsed({k: t[k][take] for k in _TEST_FIELDS})
-    parts = _judge_tests(sub, lambda name: np.asarray(pl(name))[take], th, dates[take])
     tested = take[:-1]
+    parts = _UNTESTED.get(th) if not tested.size else None
+    if parts is None:
+        sub = Parsed({k: t[k][take] for k in _TEST_FIELDS})
+        parts = _judge_tests(sub, lambda name: np.asarray(pl(name))[take], th, dates[take])
+        if not tested.size:
+            # a row without tests judges the same whatever its nameplate: kept for the next such reading
+            # (one submission at a time), one pattern per set of thresholds
+            if len(_UNTESTED) >= _UNTESTED_KEPT:
+                _UNTESTED.clear()
+            _UNTESTED[th] = parts
 
     def spread(values):
         out = filled(n, values[-1], values.dtype)
